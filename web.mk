@@ -1,0 +1,3 @@
+.PHONY: test-web
+test-web:
+	@echo "browser tests not yet written"
