@@ -1,0 +1,253 @@
+package dense
+
+import (
+	"cmp"
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// ErrSingularPencil is reported when det(G + s·C) vanishes for every s, so
+// the network has no well-defined natural frequencies (typically a node or
+// group of nodes with neither a conductive nor a capacitive path that fixes
+// its voltage).
+var ErrSingularPencil = errors.New("dense: det(G + s·C) is zero for every s")
+
+const (
+	// infTol: eigenvalues λ of (G + σC)⁻¹·C with |λ| ≤ infTol·max|λ| are
+	// taken as infinite roots. Exactly zero eigenvalues are computed as about
+	// n·eps·max|λ| ≈ 1e-14·max|λ|; the margin of 1000 keeps that noise out
+	// while still resolving roots spread over eleven decades.
+	infTol = 1e-11
+	// zeroShiftRCond: G itself is used (σ = 0, best accuracy for small roots)
+	// when its estimated reciprocal condition number is at least this; the
+	// roots then lose at most about log10(1/zeroShiftRCond) = 10 digits in
+	// the worst case and usually far fewer.
+	zeroShiftRCond = 1e-10
+	// goodShiftRCond: the first trial shift reaching this is used.
+	goodShiftRCond = 1e-4
+	// singularPencilRCond: below this for G and every trial shift, G + σC is
+	// singular to working precision (a few hundred eps) for every σ tried.
+	singularPencilRCond = 1e-13
+	// zeroSnap: with a shift σ ≠ 0, a root with |s| ≤ zeroSnap·|σ| is below
+	// the rounding error of s = σ − 1/λ (a few eps·|σ| amplified by the
+	// conditioning) and is reported as exactly 0.
+	zeroSnap = 1e-12
+)
+
+// shiftFactors are the trial shifts, in units of ‖G‖₁/‖C‖₁ (about the
+// largest root magnitude). Positive shifts come first: passive and stable
+// networks have their roots in the left half-plane, far from them.
+var shiftFactors = [...]float64{1, -1, 0.1, -0.1, 10, -10, 0.01, -0.01, 3.7, -3.7}
+
+// PencilRoots returns the finite roots s of det(G + s·C) = 0 for real n×n G
+// and C (row-major, len n·n): the natural frequencies (poles) of a linear
+// network with nodal conductance matrix G (S) and capacitance matrix C (F),
+// or its zeros when given a minor of that pencil. Roots are in rad/s for G in
+// S and C in F, negative real parts meaning decaying modes.
+//
+// Method: unknowns whose row and column of C are exactly zero (nodes without
+// capacitance) are first eliminated by a Schur complement on G. Then with a
+// real shift σ, chosen so that G + σC is well conditioned (σ = 0 when G is),
+// the eigenvalues λ of M = (G + σC)⁻¹·C are found with gonum's mat.Eigen and
+// mapped to s = σ − 1/λ. Eigenvalues with |λ| ≤ 1e-11·max|λ| belong to
+// infinite roots and are dropped; so a root more than about 1e11 times
+// farther from σ than the nearest root is dropped too.
+//
+// The roots are sorted by |s| ascending; ties by real part, then imaginary
+// part, so a complex pair appears as conj(s) (negative imaginary part) then
+// s, and the two are exact conjugates. Real roots have a zero imaginary part.
+// n = 0 gives no roots. A NaN or ±Inf entry gives a *NotFiniteError, a
+// pencil singular for every s gives an error wrapping ErrSingularPencil, and
+// mismatched lengths an error saying so.
+func PencilRoots(n int, g, c []float64) ([]complex128, error) {
+	if n < 0 || len(g) != n*n || len(c) != n*n {
+		return nil, fmt.Errorf("dense: PencilRoots: n = %d, len(g) = %d, len(c) = %d, want n ≥ 0 and both lengths n·n", n, len(g), len(c))
+	}
+	if n == 0 {
+		return nil, nil
+	}
+	for _, m := range [...]struct {
+		name string
+		a    []float64
+	}{{"G", g}, {"C", c}} {
+		for i, v := range m.a {
+			if !isFinite(v) {
+				return nil, fmt.Errorf("dense: PencilRoots: matrix %s: %w", m.name, &NotFiniteError{Row: i / n, Col: i % n, Value: complex(v, 0)})
+			}
+		}
+	}
+	m, gr, cr := deflate(n, g, c)
+	if m == 0 {
+		// C = 0: det(G + s·C) = det(G) does not depend on s.
+		var lu LU
+		if err := lu.Factorize(n, g); err != nil || lu.RCond() < singularPencilRCond {
+			return nil, fmt.Errorf("%w: C is zero and G is singular", ErrSingularPencil)
+		}
+		return nil, nil
+	}
+	return shiftedRoots(m, gr, cr)
+}
+
+// deflate removes the unknowns whose row and column of C are zero. With Z
+// those unknowns and K the others, det(G + sC) = det(G_ZZ)·det(G' + s·C_KK)
+// where G' = G_KK − G_KZ·G_ZZ⁻¹·G_ZK, provided G_ZZ is invertible; if it is
+// not (to the tolerance of zeroShiftRCond), the pencil is returned whole.
+// It returns the order and row-major G', C_KK; m = 0 means C = 0.
+func deflate(n int, g, c []float64) (m int, gr, cr []float64) {
+	var keep, drop []int
+	for i := 0; i < n; i++ {
+		zero := true
+		for j := 0; j < n; j++ {
+			if c[i*n+j] != 0 || c[j*n+i] != 0 {
+				zero = false
+				break
+			}
+		}
+		if zero {
+			drop = append(drop, i)
+		} else {
+			keep = append(keep, i)
+		}
+	}
+	if len(drop) == 0 || len(keep) == 0 {
+		if len(keep) == 0 {
+			return 0, nil, nil
+		}
+		return n, g, c
+	}
+	k, z := len(keep), len(drop)
+	gzz := make([]float64, z*z)
+	for a, i := range drop {
+		for b, j := range drop {
+			gzz[a*z+b] = g[i*n+j]
+		}
+	}
+	var lu LU
+	if err := lu.Factorize(z, gzz); err != nil || lu.RCond() < zeroShiftRCond {
+		return n, g, c
+	}
+	gr = make([]float64, k*k)
+	cr = make([]float64, k*k)
+	w := make([]float64, z)
+	for b, j := range keep {
+		for a, i := range drop {
+			w[a] = g[i*n+j]
+		}
+		lu.Solve(w, w) // w = G_ZZ⁻¹·G_Z,j
+		for a, i := range keep {
+			s := g[i*n+j]
+			for d, l := range drop {
+				s -= g[i*n+l] * w[d]
+			}
+			gr[a*k+b] = s
+			cr[a*k+b] = c[i*n+j]
+		}
+	}
+	return k, gr, cr
+}
+
+func matNorm1(n int, a []float64) float64 {
+	norm := 0.0
+	for j := 0; j < n; j++ {
+		s := 0.0
+		for i := 0; i < n; i++ {
+			s += math.Abs(a[i*n+j])
+		}
+		norm = math.Max(norm, s)
+	}
+	return norm
+}
+
+// shiftedRoots does the shift-and-invert eigenvalue step on a pencil whose C
+// is not zero.
+func shiftedRoots(n int, g, c []float64) ([]complex128, error) {
+	scale := 1.0
+	if ng, nc := matNorm1(n, g), matNorm1(n, c); ng > 0 && nc > 0 {
+		scale = ng / nc
+	}
+	a := make([]float64, n*n)
+	var lu LU
+	try := func(sigma float64) float64 {
+		for i := range a {
+			a[i] = g[i] + sigma*c[i]
+		}
+		if lu.Factorize(n, a) != nil {
+			return 0
+		}
+		return lu.RCond()
+	}
+	sigma, best := 0.0, try(0)
+	if best < zeroShiftRCond {
+		for _, f := range shiftFactors {
+			s := f * scale
+			if r := try(s); r > best {
+				sigma, best = s, r
+				if r >= goodShiftRCond {
+					break
+				}
+			}
+		}
+	}
+	if best < singularPencilRCond {
+		return nil, fmt.Errorf("%w: best reciprocal condition of G + σ·C over %d trial shifts is %.3g (scale %.3g)",
+			ErrSingularPencil, len(shiftFactors)+1, best, scale)
+	}
+	if try(sigma) != best { // leave lu holding the chosen shift
+		return nil, fmt.Errorf("dense: PencilRoots: refactoring G + σ·C at σ = %g gave a different result", sigma)
+	}
+	// M = (G + σC)⁻¹·C, column by column.
+	mData := make([]float64, n*n)
+	col := make([]float64, n)
+	for j := 0; j < n; j++ {
+		for i := 0; i < n; i++ {
+			col[i] = c[i*n+j]
+		}
+		lu.Solve(col, col)
+		for i := 0; i < n; i++ {
+			mData[i*n+j] = col[i]
+		}
+	}
+	var eig mat.Eigen
+	if !eig.Factorize(mat.NewDense(n, n, mData), mat.EigenNone) {
+		return nil, fmt.Errorf("dense: PencilRoots: eigenvalue iteration on (G + σ·C)⁻¹·C did not converge (n = %d, σ = %g)", n, sigma)
+	}
+	lambda := eig.Values(nil)
+	maxAbs := 0.0
+	for _, l := range lambda {
+		maxAbs = math.Max(maxAbs, cmplx.Abs(l))
+	}
+	roots := make([]complex128, 0, n)
+	for _, l := range lambda {
+		if !(cmplx.Abs(l) > infTol*maxAbs) || imag(l) < 0 {
+			continue // infinite root, or the second of a pair
+		}
+		s := complex(sigma, 0) - 1/l
+		if sigma != 0 && cmplx.Abs(s) <= zeroSnap*math.Abs(sigma) {
+			s = 0
+		}
+		if !isFiniteC(s) {
+			return nil, fmt.Errorf("dense: PencilRoots: root %v from eigenvalue %v is not finite (σ = %g)", s, l, sigma)
+		}
+		if imag(l) == 0 {
+			roots = append(roots, complex(real(s), 0))
+			continue
+		}
+		re, im := real(s), math.Abs(imag(s))
+		roots = append(roots, complex(re, -im), complex(re, im))
+	}
+	slices.SortFunc(roots, func(x, y complex128) int {
+		if c := cmp.Compare(cmplx.Abs(x), cmplx.Abs(y)); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(real(x), real(y)); c != 0 {
+			return c
+		}
+		return cmp.Compare(imag(x), imag(y))
+	})
+	return roots, nil
+}
