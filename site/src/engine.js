@@ -1,0 +1,118 @@
+// The page's side of the bridge: starts the Go engine in a Blob-URL Worker,
+// checks its version against the bundle's, and coalesces evaluations so only
+// the newest design is computed while the engine is busy.
+import workerSource from 'stagewright:worker';
+
+/* global STAGEWRIGHT_VERSION */
+export const PAGE_VERSION = typeof STAGEWRIGHT_VERSION === 'string' ? STAGEWRIGHT_VERSION : 'dev';
+
+function base64ToBytes(b64) {
+  if (typeof Uint8Array.fromBase64 === 'function') return Uint8Array.fromBase64(b64);
+  const bin = atob(b64);
+  const out = new Uint8Array(bin.length);
+  for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
+  return out;
+}
+
+/** Finds the gzip-compressed WebAssembly: inlined in the page, or beside it. */
+async function loadWasmGz() {
+  const inline = document.getElementById('stagewright-wasm');
+  if (inline) return base64ToBytes(inline.textContent.trim()).buffer;
+  const r = await fetch(new URL('stagewright.wasm.gz', document.baseURI));
+  if (!r.ok) throw new Error(`stagewright.wasm.gz: HTTP ${r.status}`);
+  return r.arrayBuffer();
+}
+
+export class Engine {
+  constructor() {
+    this.worker = null;
+    this.nextId = 1;
+    this.waiting = new Map();
+    this.busy = false;
+    this.queued = null; // {fragment, resolvers[]}: only the newest request waits
+    this.version = null;
+  }
+
+  /** Starts the worker; resolves with {version, initMs}, rejects with a readable reason. */
+  async start() {
+    const gz = await loadWasmGz();
+    const url = URL.createObjectURL(new Blob([workerSource], { type: 'text/javascript' }));
+    this.worker = new Worker(url);
+    URL.revokeObjectURL(url);
+    return new Promise((resolve, reject) => {
+      this.worker.onerror = (e) => reject(new Error(`engine worker failed: ${e.message || 'unknown error'}`));
+      this.worker.onmessage = (e) => {
+        const m = e.data;
+        if (m.type === 'ready') {
+          this.version = m.version;
+          if (m.version !== PAGE_VERSION) {
+            reject(new Error(`version mismatch: page ${PAGE_VERSION}, engine ${m.version}; rebuild with make site`));
+            return;
+          }
+          this.worker.onmessage = (ev) => this.onReply(ev.data);
+          resolve(m);
+        } else if (m.type === 'fatal') {
+          reject(new Error(m.message));
+        }
+      };
+      this.worker.postMessage({ type: 'init', gz }, [gz]);
+    });
+  }
+
+  onReply(m) {
+    if (m.type === 'fatal') {
+      for (const w of this.waiting.values()) w.reject(new Error(m.message));
+      this.waiting.clear();
+      return;
+    }
+    const w = this.waiting.get(m.id);
+    if (!w) return;
+    this.waiting.delete(m.id);
+    w.resolve({ response: m.response, ms: m.ms });
+  }
+
+  /** One call, not coalesced (schema, evaluateMany). */
+  call(method, ...args) {
+    const id = this.nextId++;
+    return new Promise((resolve, reject) => {
+      this.waiting.set(id, { resolve, reject });
+      this.worker.postMessage({ type: 'call', id, method, args });
+    });
+  }
+
+  /**
+   * Evaluates a fragment. While an evaluation runs, newer requests replace
+   * each other: superseded ones resolve with {superseded: true}.
+   */
+  evaluate(fragment) {
+    return new Promise((resolve, reject) => {
+      if (this.busy) {
+        if (this.queued) for (const r of this.queued.resolvers) r.resolve({ superseded: true });
+        this.queued = { fragment, resolvers: [{ resolve, reject }] };
+        return;
+      }
+      this.run(fragment, [{ resolve, reject }]);
+    });
+  }
+
+  run(fragment, resolvers) {
+    this.busy = true;
+    this.call('evaluate', fragment).then(
+      (r) => {
+        for (const x of resolvers) x.resolve(r);
+        this.next();
+      },
+      (err) => {
+        for (const x of resolvers) x.reject(err);
+        this.next();
+      },
+    );
+  }
+
+  next() {
+    this.busy = false;
+    const q = this.queued;
+    this.queued = null;
+    if (q) this.run(q.fragment, q.resolvers);
+  }
+}

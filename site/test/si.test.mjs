@@ -1,0 +1,55 @@
+// Unit tests of the page's number and fragment helpers (no browser needed).
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { parseSI, formatSI, exactSI } from '../src/si.js';
+import { splitFragment, withKey, fragmentMap } from '../src/fragment.js';
+
+test('parseSI reads SI prefixes as written in the trade (common practice)', () => {
+  const cases = [
+    ['4.7k', 4700], ['180n', 180e-9], ['2.2p', 2.2e-12], ['10u', 10e-6], ['10µ', 10e-6], ['10μ', 10e-6],
+    ['1M', 1e6], ['1G', 1e9], ['1T', 1e12], ['-0.5', -0.5], ['1e-3', 1e-3], [' 3.3m ', 3.3e-3], ['4.7kΩ', 4700],
+  ];
+  for (const [text, want] of cases) {
+    const got = parseSI(text, 'Ω');
+    // relative 1e-15: one rounding of the decimal scaling, about 4 ulp
+    assert.ok(Math.abs(got.value - want) <= Math.abs(want) * 1e-15, `${text}: got ${got.value}, want ${want}`);
+  }
+});
+
+test('parseSI rejects nonsense with a reason', () => {
+  for (const text of ['', 'abc', '4k7', '1..2', 'NaN', 'Infinity', '1e999', '--1', '0x10', 'k']) {
+    const got = parseSI(text);
+    assert.equal(got.value, undefined, `${text} accepted as ${got.value}`);
+    assert.match(got.error, /\w/);
+  }
+});
+
+test('exactSI round-trips bit-exactly through parseSI', () => {
+  let seed = 12345;
+  const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+  for (let i = 0; i < 5000; i++) {
+    const v = 10 ** (rnd() * 30 - 16) * (rnd() < 0.1 ? -1 : 1);
+    const s = exactSI(v);
+    assert.equal(parseSI(s).value, v, `${v} -> ${s}`);
+    assert.doesNotMatch(s, /[^0-9a-zA-Z.\-]/, `non-ASCII or space in ${s}`);
+  }
+  assert.equal(exactSI(20e-6), '20u');
+  assert.equal(exactSI(4700), '4.7k');
+  assert.equal(exactSI(1e12), '1e12');
+});
+
+test('formatSI shows 4 significant digits with a prefix', () => {
+  assert.equal(formatSI(4700, 4), '4.7\u2009k');
+  assert.equal(formatSI(1.8e-7, 4, 'm'), '180\u2009nm');
+  assert.equal(formatSI(999.96e3, 4), '1\u2009M');
+  assert.equal(formatSI(null), '—');
+  assert.equal(formatSI(Infinity), '∞');
+  assert.equal(formatSI(-12.5), '−12.5');
+});
+
+test('fragment helpers keep the first of a repeated key and set keys', () => {
+  assert.deepEqual(splitFragment('#a=1&b=%C2%B5&c'), [['a', '1'], ['b', 'µ'], ['c', '']]);
+  assert.equal(fragmentMap('a=1&a=2').get('a'), '1');
+  assert.equal(withKey('a=1&b=2', 'b', '3'), 'a=1&b=3');
+  assert.equal(withKey('a=1', 'b', '3'), 'a=1&b=3');
+});
