@@ -1,0 +1,312 @@
+package device
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+)
+
+// Polarity says whether a device is n-channel or p-channel.
+type Polarity int
+
+// The two polarities. The values are the signs used to mirror a p-channel
+// device onto the n-channel equations.
+const (
+	NMOS Polarity = 1
+	PMOS Polarity = -1
+)
+
+// String returns "n" or "p".
+func (p Polarity) String() string {
+	switch p {
+	case NMOS:
+		return "n"
+	case PMOS:
+		return "p"
+	}
+	return "Polarity(" + strconv.Itoa(int(p)) + ")"
+}
+
+// ParsePolarity reads "n" or "p", the forms String writes.
+func ParsePolarity(s string) (Polarity, error) {
+	switch s {
+	case "n":
+		return NMOS, nil
+	case "p":
+		return PMOS, nil
+	}
+	return 0, fmt.Errorf("device: polarity %q is not \"n\" or \"p\"", s)
+}
+
+// Params holds one polarity's process parameters in SI units. Threshold and
+// other voltages are magnitudes: VT0 is positive for a p-channel device too.
+type Params struct {
+	VT0     float64 // V, zero-bias threshold magnitude at the nominal temperature
+	U0      float64 // m²/(V·s), low-field mobility at the nominal temperature
+	Tox     float64 // m, gate-oxide thickness; Cox = 3.9·ε0/Tox
+	Gamma   float64 // √V, body-effect coefficient
+	Phi     float64 // V, surface potential 2φF at the nominal temperature; 0 = derive it from NSub and ni(T)
+	NSub    float64 // m⁻³, substrate doping, used only when Phi == 0
+	NFixed  float64 // when > 0, a constant slope factor n (simple EKV form VP = (VGB − VT0)/n); 0 = derive n from Gamma
+	LambdaL float64 // m/V, channel-length modulation: λ = LambdaL/L
+	Theta   float64 // 1/V, mobility reduction by the vertical field
+	ECrit   float64 // V/m, critical lateral field for velocity saturation; 0 = off
+	TCV     float64 // V/K, threshold drift: VT0(T) = VT0 − TCV·(T − TNom)
+	BEX     float64 // mobility temperature exponent: µ(T) = U0·(T/TNom)^BEX, normally about −1.5
+	CGSO    float64 // F/m, gate–source overlap capacitance per width
+	CGDO    float64 // F/m, gate–drain overlap capacitance per width
+	CJ      float64 // F/m², zero-bias bottom junction capacitance
+	CJSW    float64 // F/m, zero-bias sidewall junction capacitance
+	MJ      float64 // bottom junction grading exponent
+	MJSW    float64 // sidewall junction grading exponent
+	PB      float64 // V, junction built-in potential
+	LDiff   float64 // m, source/drain diffusion length: area W·LDiff, perimeter W + 2·LDiff
+	KF      float64 // V²·F, flicker coefficient: gate-referred S_vg(f) = KF/(Cox·W·L·f)
+}
+
+// RangeError reports a value outside its accepted range: a process
+// parameter, a geometry or a temperature.
+type RangeError struct {
+	Name     string  // the field or argument, e.g. "VT0", "W"
+	Value    float64 // the value given
+	Min, Max float64 // the accepted closed range
+	Unit     string  // SI unit of Value, Min and Max ("" when dimensionless)
+	Note     string  // extra condition, e.g. "or exactly 0 (off)"; may be empty
+}
+
+func (e *RangeError) Error() string {
+	u := ""
+	if e.Unit != "" {
+		u = " " + e.Unit
+	}
+	s := fmt.Sprintf("device: %s = %g%s is outside the accepted range [%g, %g]%s", e.Name, e.Value, u, e.Min, e.Max, u)
+	if e.Note != "" {
+		s += " " + e.Note
+	}
+	return s
+}
+
+// paramRange is one row of the table Validate checks.
+type paramRange struct {
+	name     string
+	get      func(*Params) float64
+	min, max float64
+	unit     string
+	zeroOK   bool // 0 means "off" or "derive it", allowed besides [min, max]
+}
+
+// paramRanges are wide enough for any plausible bulk CMOS process and narrow
+// enough that every derived quantity stays finite.
+var paramRanges = []paramRange{
+	{"VT0", func(p *Params) float64 { return p.VT0 }, -1, 2, "V", false},
+	{"U0", func(p *Params) float64 { return p.U0 }, 1e-4, 1, "m²/(V·s)", false},
+	{"Tox", func(p *Params) float64 { return p.Tox }, 0.5e-9, 1e-6, "m", false},
+	{"Gamma", func(p *Params) float64 { return p.Gamma }, 0, 5, "√V", false},
+	{"Phi", func(p *Params) float64 { return p.Phi }, 0.2, 1.5, "V", true},
+	{"NSub", func(p *Params) float64 { return p.NSub }, 1e20, 1e26, "m⁻³", true},
+	{"NFixed", func(p *Params) float64 { return p.NFixed }, 1, 5, "", true},
+	{"LambdaL", func(p *Params) float64 { return p.LambdaL }, 0, 1e-5, "m/V", false},
+	{"Theta", func(p *Params) float64 { return p.Theta }, 0, 10, "1/V", false},
+	{"ECrit", func(p *Params) float64 { return p.ECrit }, 1e5, 1e10, "V/m", true},
+	{"TCV", func(p *Params) float64 { return p.TCV }, -0.01, 0.01, "V/K", false},
+	{"BEX", func(p *Params) float64 { return p.BEX }, -4, 2, "", false},
+	{"CGSO", func(p *Params) float64 { return p.CGSO }, 0, 1e-8, "F/m", false},
+	{"CGDO", func(p *Params) float64 { return p.CGDO }, 0, 1e-8, "F/m", false},
+	{"CJ", func(p *Params) float64 { return p.CJ }, 0, 0.1, "F/m²", false},
+	{"CJSW", func(p *Params) float64 { return p.CJSW }, 0, 1e-8, "F/m", false},
+	{"MJ", func(p *Params) float64 { return p.MJ }, 0, 1, "", false},
+	{"MJSW", func(p *Params) float64 { return p.MJSW }, 0, 1, "", false},
+	{"PB", func(p *Params) float64 { return p.PB }, 0.1, 2, "V", false},
+	{"LDiff", func(p *Params) float64 { return p.LDiff }, 0, 1e-4, "m", false},
+	{"KF", func(p *Params) float64 { return p.KF }, 0, 1e-20, "V²·F", false},
+}
+
+// Validate checks every field against its accepted range and returns a
+// *RangeError naming the first bad field. NaN and ±Inf are always rejected.
+// Phi == 0 requires NSub in range, since 2φF is then derived from it.
+func (p Params) Validate() error {
+	for _, r := range paramRanges {
+		v := r.get(&p)
+		if r.zeroOK && v == 0 {
+			continue
+		}
+		if !(v >= r.min && v <= r.max) { // also catches NaN
+			e := &RangeError{Name: r.name, Value: v, Min: r.min, Max: r.max, Unit: r.unit}
+			if r.zeroOK {
+				e.Note = "or exactly 0"
+			}
+			return e
+		}
+	}
+	if p.Phi == 0 && p.NSub == 0 {
+		return &RangeError{Name: "NSub", Value: 0, Min: 1e20, Max: 1e26, Unit: "m⁻³",
+			Note: "(needed because Phi = 0 asks for 2φF to be derived from the doping)"}
+	}
+	return nil
+}
+
+// Process is a named set of n- and p-channel parameters with the supply and
+// geometry limits a design may use.
+type Process struct {
+	Name       string  // short key, e.g. "d180"
+	Title      string  // human title
+	VDD        float64 // V, nominal supply
+	LMin, LMax float64 // m, allowed channel length
+	WMin, WMax float64 // m, allowed channel width
+	TNom       float64 // K, temperature at which the parameters hold
+	N, P       Params
+}
+
+// Params returns the parameters of polarity p; for a value that is neither
+// NMOS nor PMOS it returns the zero Params, which New rejects.
+func (pr Process) Params(p Polarity) Params {
+	switch p {
+	case NMOS:
+		return pr.N
+	case PMOS:
+		return pr.P
+	}
+	return Params{}
+}
+
+// Validate checks the supply, geometry limits, nominal temperature and both
+// parameter sets. Errors name the process and the polarity.
+func (pr Process) Validate() error {
+	checks := []RangeError{
+		{Name: "VDD", Value: pr.VDD, Min: 0.1, Max: 100, Unit: "V"},
+		{Name: "LMin", Value: pr.LMin, Min: minSize, Max: maxSize, Unit: "m"},
+		{Name: "LMax", Value: pr.LMax, Min: pr.LMin, Max: maxSize, Unit: "m"},
+		{Name: "WMin", Value: pr.WMin, Min: minSize, Max: maxSize, Unit: "m"},
+		{Name: "WMax", Value: pr.WMax, Min: pr.WMin, Max: maxSize, Unit: "m"},
+		{Name: "TNom", Value: pr.TNom, Min: minTemp, Max: maxTemp, Unit: "K"},
+	}
+	for i := range checks {
+		c := &checks[i]
+		if !(c.Value >= c.Min && c.Value <= c.Max) {
+			return fmt.Errorf("device: process %q: %w", pr.Name, c)
+		}
+	}
+	if err := pr.N.Validate(); err != nil {
+		return fmt.Errorf("device: process %q, n-channel: %w", pr.Name, err)
+	}
+	if err := pr.P.Validate(); err != nil {
+		return fmt.Errorf("device: process %q, p-channel: %w", pr.Name, err)
+	}
+	return nil
+}
+
+// The built-in processes. INVENTED DEMO DATA: the numbers are chosen to be
+// plausible for the technology class and describe no real process.
+var builtins = map[string]Process{
+	// A 1.8 V, 180 nm-class demo process (invented).
+	"d180": {
+		Name:  "d180",
+		Title: "Demo 180 nm, 1.8 V (invented demo data, not a real process)",
+		VDD:   1.8,
+		LMin:  180e-9, LMax: 20e-6,
+		WMin: 220e-9, WMax: 1e-3,
+		TNom: 300.15,
+		N: Params{
+			VT0:     0.45,
+			U0:      0.030,  // 300 cm²/(V·s)
+			Tox:     4.1e-9, // Cox ≈ 8.42 mF/m² (8.42 fF/µm²)
+			Gamma:   0.45,
+			Phi:     0.85,
+			LambdaL: 0.02e-6, // λ ≈ 0.11 /V at L = 180 nm, 0.02 /V at 1 µm
+			Theta:   0.25,
+			ECrit:   4e6, // 1/(ECrit·LMin) ≈ 1.4 /V
+			TCV:     1.0e-3,
+			BEX:     -1.5,
+			CGSO:    0.35e-9, CGDO: 0.35e-9, // 0.35 fF/µm
+			CJ: 1.0e-3, CJSW: 2.0e-10, // 1 fF/µm², 0.2 fF/µm
+			MJ: 0.40, MJSW: 0.30,
+			PB:    0.80,
+			LDiff: 0.5e-6,
+			KF:    1e-25,
+		},
+		P: Params{
+			VT0:     0.45,
+			U0:      0.008, // 80 cm²/(V·s)
+			Tox:     4.1e-9,
+			Gamma:   0.40,
+			Phi:     0.80,
+			LambdaL: 0.025e-6, // λ ≈ 0.14 /V at 180 nm
+			Theta:   0.20,
+			ECrit:   1.2e7,
+			TCV:     1.2e-3,
+			BEX:     -1.3,
+			CGSO:    0.33e-9, CGDO: 0.33e-9,
+			CJ: 1.1e-3, CJSW: 2.5e-10,
+			MJ: 0.45, MJSW: 0.33,
+			PB:    0.85,
+			LDiff: 0.5e-6,
+			KF:    2e-26,
+		},
+	},
+	// A 1.2 V, 65 nm-class demo process (invented).
+	"d65": {
+		Name:  "d65",
+		Title: "Demo 65 nm, 1.2 V (invented demo data, not a real process)",
+		VDD:   1.2,
+		LMin:  65e-9, LMax: 10e-6,
+		WMin: 120e-9, WMax: 1e-3,
+		TNom: 300.15,
+		N: Params{
+			VT0:     0.35,
+			U0:      0.022,  // 220 cm²/(V·s)
+			Tox:     1.8e-9, // Cox ≈ 19.2 mF/m²
+			Gamma:   0.35,
+			Phi:     0.95,
+			LambdaL: 0.012e-6, // λ ≈ 0.18 /V at L = 65 nm
+			Theta:   0.45,
+			ECrit:   3.5e6, // 1/(ECrit·LMin) ≈ 4.4 /V
+			TCV:     0.8e-3,
+			BEX:     -1.4,
+			CGSO:    0.30e-9, CGDO: 0.30e-9,
+			CJ: 1.2e-3, CJSW: 0.8e-10,
+			MJ: 0.35, MJSW: 0.25,
+			PB:    0.75,
+			LDiff: 0.2e-6,
+			KF:    6e-26,
+		},
+		P: Params{
+			VT0:     0.33,
+			U0:      0.007, // 70 cm²/(V·s)
+			Tox:     1.9e-9,
+			Gamma:   0.32,
+			Phi:     0.90,
+			LambdaL: 0.015e-6, // λ ≈ 0.23 /V at 65 nm
+			Theta:   0.35,
+			ECrit:   1e7,
+			TCV:     1.0e-3,
+			BEX:     -1.2,
+			CGSO:    0.28e-9, CGDO: 0.28e-9,
+			CJ: 1.3e-3, CJSW: 0.9e-10,
+			MJ: 0.38, MJSW: 0.27,
+			PB:    0.78,
+			LDiff: 0.2e-6,
+			KF:    1.5e-26,
+		},
+	},
+}
+
+// Builtin returns the built-in process with the given name. Both built-in
+// processes are invented demo data.
+func Builtin(name string) (Process, bool) {
+	pr, ok := builtins[name]
+	return pr, ok
+}
+
+// BuiltinNames returns the names of the built-in processes, sorted.
+func BuiltinNames() []string {
+	names := make([]string, 0, len(builtins))
+	for k := range builtins {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// finite reports whether v is neither NaN nor ±Inf.
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
