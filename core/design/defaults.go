@@ -1,0 +1,63 @@
+package design
+
+import "stagewright/core/device"
+
+// defaultProcess is the process of a fragment that names none.
+const defaultProcess = "d180"
+
+// processDefaults are the defaults that differ between processes, beyond
+// what device.Process itself says (VDD and the geometry limits).
+type processDefaults struct {
+	L      float64 // m, M1 length
+	LoadL  float64 // m, M2 length
+	Vin    float64 // V, input DC level
+	VG     float64 // V, cg gate level
+	VOut   float64 // V, output target with transistor loads
+	LoadVB float64 // V, |VGS| of M2
+	RD     float64 // Ω, drain resistor
+}
+
+// builtinDefaults holds the defaults for each built-in demo process. They
+// are starting points chosen for these invented processes, not data of any
+// real one.
+var builtinDefaults = map[string]processDefaults{
+	"d180": {L: 0.5e-6, LoadL: 1e-6, Vin: 0.7, VG: 1.2, VOut: 0.9, LoadVB: 0.7, RD: 10e3},
+	"d65":  {L: 0.2e-6, LoadL: 0.5e-6, Vin: 0.5, VG: 0.8, VOut: 0.6, LoadVB: 0.5, RD: 5e3},
+}
+
+// defaultsOf returns the defaults for pr; a process without an entry gets
+// those of d180 (the key table clamps them into the process's limits).
+func defaultsOf(pr *device.Process) processDefaults {
+	if pd, ok := builtinDefaults[pr.Name]; ok {
+		return pd
+	}
+	return builtinDefaults[defaultProcess]
+}
+
+// lookupProcess returns the built-in process called name, or d180 when
+// there is none by that name.
+func lookupProcess(name string) device.Process {
+	if pr, ok := device.Builtin(name); ok {
+		return pr
+	}
+	pr, _ := device.Builtin(defaultProcess)
+	return pr
+}
+
+// Default returns the default design for the built-in process proc; ""
+// and any name that is not a built-in process mean d180. The result passes
+// Validate and has no overrides (Overrides is nil).
+//
+// Defaults that depend on other keys follow them: vdd is the process's
+// supply; vin, vg, vout and vbl are the process's values or vdd when that is
+// lower; rs is 10 kΩ for a source follower and 0 (none) otherwise; fmax, nlo
+// and nhi stay inside the sweep. Decode applies the same rules, whatever the
+// order of the keys in the fragment.
+func Default(proc string) Design {
+	var given [numKeys]givenValue
+	if _, ok := device.Builtin(proc); ok {
+		given[keyIndex["proc"]] = givenValue{text: proc, present: true}
+	}
+	d, _ := resolve(&given)
+	return d
+}
