@@ -1,0 +1,181 @@
+package circuit
+
+import (
+	"math"
+	"math/cmplx"
+
+	"stagewright/core/dense"
+)
+
+// Response holds a frequency sweep. The caller sizes every slice to the
+// number of frequencies (Resize does it) and the analyzer fills them, so
+// a repeated sweep allocates nothing.
+type Response struct {
+	F        []float64 // Hz
+	Gain     []complex128
+	MagDB    []float64
+	PhaseDeg []float64 // unwrapped
+	Zin      []float64 // |Zin|, Ω (+Inf where the input is open)
+	Zout     []float64 // |Zout|, Ω
+	NoiseOut []float64 // output noise density, V/√Hz
+	NoiseIn  []float64 // input-referred noise density, V/√Hz
+}
+
+// Resize makes every slice n long, reusing storage.
+func (r *Response) Resize(n int) {
+	grow := func(s []float64) []float64 {
+		if cap(s) < n {
+			return make([]float64, n)
+		}
+		return s[:n]
+	}
+	r.F, r.MagDB, r.PhaseDeg = grow(r.F), grow(r.MagDB), grow(r.PhaseDeg)
+	r.Zin, r.Zout, r.NoiseOut, r.NoiseIn = grow(r.Zin), grow(r.Zout), grow(r.NoiseOut), grow(r.NoiseIn)
+	if cap(r.Gain) < n {
+		r.Gain = make([]complex128, n)
+	}
+	r.Gain = r.Gain[:n]
+}
+
+// LogSweep fills f with a log-spaced sweep from fmin to fmax at ppd points
+// per decade (both ends included) and returns it, reusing f's storage.
+func LogSweep(f []float64, fmin, fmax float64, ppd int) []float64 {
+	dec := math.Log10(fmax / fmin)
+	n := int(math.Floor(dec*float64(ppd)+1e-9)) + 1
+	if n < 2 {
+		n = 2
+	}
+	if cap(f) < n {
+		f = make([]float64, n)
+	}
+	f = f[:n]
+	for i := range f {
+		f[i] = fmin * math.Pow(10, float64(i)/float64(ppd))
+	}
+	f[n-1] = math.Min(f[n-1], fmax)
+	return f
+}
+
+// Analyzer sweeps a network. Its zero value is ready; it keeps its
+// workspace between calls.
+type Analyzer struct {
+	y, yin, yout []complex128
+	b, z, x      []complex128
+	lu, luIn     dense.CLU
+	luOut        dense.CLU
+}
+
+func (a *Analyzer) size(n int) {
+	if cap(a.y) < n*n {
+		a.y = make([]complex128, n*n)
+		a.yin = make([]complex128, n*n)
+		a.yout = make([]complex128, n*n)
+	}
+	a.y, a.yin, a.yout = a.y[:n*n], a.yin[:n*n], a.yout[:n*n]
+	if cap(a.b) < n {
+		a.b, a.z, a.x = make([]complex128, n), make([]complex128, n), make([]complex128, n)
+	}
+	a.b, a.z, a.x = a.b[:n], a.z[:n], a.x[:n]
+}
+
+// Sweep evaluates the network at every frequency in r.F (Resize r first):
+// the gain v(out)/v(signal), the input impedance (the signal-source
+// resistance excluded), the output impedance (signal shorted, the load
+// resistance excluded), and the output and input-referred noise densities
+// from every noise source through the adjoint network.
+func (a *Analyzer) Sweep(nw *Network, r *Response) {
+	n := nw.N
+	a.size(n)
+	prevPhase := 0.0
+	for k, f := range r.F {
+		w := 2 * math.Pi * f
+		for i := range a.y {
+			a.y[i] = complex(nw.G[i], w*nw.C[i])
+		}
+		for i := 0; i < n; i++ {
+			a.b[i] = -complex(nw.GSig[i], w*nw.CSig[i])
+		}
+		var h complex128
+		zout := math.Inf(1)
+		noise := 0.0
+		if err := a.lu.Factorize(n, a.y); err == nil && nw.Out >= 0 {
+			// Adjoint: z = Y⁻ᵀ e_out, so z_i = (Y⁻¹)_{out,i}: the transfer
+			// from a unit current injected at node i to v(out).
+			for i := range a.z {
+				a.z[i] = 0
+			}
+			a.z[nw.Out] = 1
+			a.lu.SolveTrans(a.z, a.z)
+			for i := 0; i < n; i++ {
+				h += a.z[i] * a.b[i]
+			}
+			for _, s := range nw.Noise {
+				var t complex128
+				if s.A >= 0 {
+					t += a.z[s.A]
+				}
+				if s.B >= 0 {
+					t -= a.z[s.B]
+				}
+				m := real(t)*real(t) + imag(t)*imag(t)
+				noise += (s.White + s.Flicker/f) * m
+			}
+			zoo := a.z[nw.Out] // driving-point impedance at out, everything connected
+			if nw.RLG == 0 {
+				zout = cmplx.Abs(zoo)
+			} else {
+				copy(a.yout, a.y)
+				a.yout[nw.Out*n+nw.Out] -= complex(nw.RLG, 0)
+				zout = a.drivingPoint(&a.luOut, a.yout, n, nw.Out)
+			}
+		}
+		zin := math.Inf(1)
+		if nw.In >= 0 {
+			copy(a.yin, a.y)
+			a.yin[nw.In*n+nw.In] -= complex(nw.RSigG, 0)
+			zin = a.drivingPoint(&a.luIn, a.yin, n, nw.In)
+		}
+		r.Gain[k] = h
+		mag := cmplx.Abs(h)
+		r.MagDB[k] = 20 * math.Log10(mag)
+		if mag == 0 {
+			r.MagDB[k] = -400
+		}
+		ph := cmplx.Phase(h) * 180 / math.Pi
+		if k > 0 {
+			for ph-prevPhase > 180 {
+				ph -= 360
+			}
+			for ph-prevPhase < -180 {
+				ph += 360
+			}
+		}
+		prevPhase = ph
+		r.PhaseDeg[k] = ph
+		r.Zin[k] = zin
+		r.Zout[k] = zout
+		r.NoiseOut[k] = math.Sqrt(noise)
+		if mag > 0 {
+			r.NoiseIn[k] = r.NoiseOut[k] / mag
+		} else {
+			r.NoiseIn[k] = math.Inf(1)
+		}
+	}
+}
+
+// drivingPoint returns |(Y⁻¹)_kk| for the matrix y, or +Inf when y is singular.
+func (a *Analyzer) drivingPoint(lu *dense.CLU, y []complex128, n, k int) float64 {
+	if err := lu.Factorize(n, y); err != nil {
+		return math.Inf(1)
+	}
+	for i := range a.x {
+		a.x[i] = 0
+	}
+	a.x[k] = 1
+	lu.Solve(a.x, a.x)
+	z := cmplx.Abs(a.x[k])
+	if math.IsNaN(z) {
+		return math.Inf(1)
+	}
+	return z
+}

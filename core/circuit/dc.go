@@ -1,0 +1,476 @@
+package circuit
+
+import (
+	"fmt"
+	"math"
+
+	"stagewright/core/dense"
+)
+
+// Solver settings. The zero value of each field means the default shown.
+type Options struct {
+	MaxIter  int     // Newton iterations per solve (100)
+	MaxStep  float64 // largest change of any node voltage or servo value per iteration, V (0.5)
+	GMin     float64 // conductance from every node to ground, S (1e-12)
+	RelTol   float64 // KCL residual relative to the current magnitudes at a node (1e-9)
+	AbsTolI  float64 // absolute KCL residual floor, A (1e-18)
+	VoltTol  float64 // voltage change that counts as settled, V (1e-9)
+	NoGMin   bool    // skip gmin stepping (tests)
+	NoSource bool    // skip source stepping (tests)
+}
+
+func (o Options) withDefaults() Options {
+	if o.MaxIter <= 0 {
+		o.MaxIter = 100
+	}
+	if o.MaxStep <= 0 {
+		o.MaxStep = 0.5
+	}
+	if o.GMin <= 0 {
+		o.GMin = 1e-12
+	}
+	if o.RelTol <= 0 {
+		o.RelTol = 1e-9
+	}
+	if o.AbsTolI <= 0 {
+		o.AbsTolI = 1e-18
+	}
+	if o.VoltTol <= 0 {
+		o.VoltTol = 1e-9
+	}
+	return o
+}
+
+// OperatingPoint is a solved DC state.
+type OperatingPoint struct {
+	V          []float64 // node voltages by node index; V[0] = 0
+	Branch     []float64 // voltage-source branch currents, A, flowing P → source → N
+	Source     []float64 // voltage-source values as solved (servo'd sources carry their solved value)
+	Iterations int       // Newton iterations, all continuation steps included
+	Method     string    // "newton", "gmin stepping" or "source stepping"
+}
+
+// NoConvergenceError says that no DC solution was found and where the
+// solver was stuck.
+type NoConvergenceError struct {
+	Iterations int
+	Node       string  // node (or equation) with the largest residual at the end
+	Residual   float64 // that residual, A (V for a source or voltage-servo equation)
+	Reason     string
+}
+
+func (e *NoConvergenceError) Error() string {
+	return fmt.Sprintf("Newton–Raphson found no operating point after %d iterations (plain, gmin stepping and source stepping): %s; largest residual %.3g at %s",
+		e.Iterations, e.Reason, e.Residual, e.Node)
+}
+
+// dcSystem holds the workspace of one DC solve.
+type dcSystem struct {
+	c       *Circuit
+	opt     Options
+	nn      int // node unknowns (nodes − 1)
+	nb      int // branch unknowns
+	ns      int // servo unknowns
+	n       int
+	x, dx   []float64
+	f, fabs []float64
+	j       []float64
+	lu      dense.LU
+	servoOf []int // source index → servo index or −1
+	gmin    float64
+	scale   float64
+}
+
+func newDCSystem(c *Circuit, opt Options) *dcSystem {
+	s := &dcSystem{c: c, opt: opt}
+	s.nn = len(c.names) - 1
+	s.nb = len(c.VSources)
+	s.ns = len(c.Servos)
+	s.n = s.nn + s.nb + s.ns
+	s.x = make([]float64, s.n)
+	s.dx = make([]float64, s.n)
+	s.f = make([]float64, s.n)
+	s.fabs = make([]float64, s.n)
+	s.j = make([]float64, s.n*s.n)
+	s.servoOf = make([]int, s.nb)
+	for i := range s.servoOf {
+		s.servoOf[i] = -1
+	}
+	for i, sv := range c.Servos {
+		s.servoOf[sv.Source] = i
+	}
+	return s
+}
+
+func (s *dcSystem) v(n Node) float64 {
+	if n == Ground {
+		return 0
+	}
+	return s.x[int(n)-1]
+}
+
+// sourceValue is the value of source k at the present iterate.
+func (s *dcSystem) sourceValue(k int) float64 {
+	if j := s.servoOf[k]; j >= 0 {
+		return s.x[s.nn+s.nb+j]
+	}
+	return s.c.VSources[k].V * s.scale
+}
+
+func (s *dcSystem) addJ(row, col int, g float64) {
+	if row >= 0 && col >= 0 {
+		s.j[row*s.n+col] += g
+	}
+}
+
+func idx(n Node) int { return int(n) - 1 } // −1 for ground
+
+// assemble fills f (residuals), fabs (magnitude scale of each row) and j.
+func (s *dcSystem) assemble() {
+	for i := range s.f {
+		s.f[i], s.fabs[i] = 0, 0
+	}
+	for i := range s.j {
+		s.j[i] = 0
+	}
+	addF := func(n Node, i float64) {
+		if k := idx(n); k >= 0 {
+			s.f[k] += i
+			s.fabs[k] += math.Abs(i)
+		}
+	}
+	for k := 0; k < s.nn; k++ {
+		g := s.gmin
+		s.f[k] += g * s.x[k]
+		s.fabs[k] += math.Abs(g * s.x[k])
+		s.j[k*s.n+k] += g
+	}
+	for _, r := range s.c.Resistors {
+		if math.IsInf(r.R, 1) || r.ACOnly {
+			continue
+		}
+		g := 1 / r.R
+		i := g * (s.v(r.A) - s.v(r.B))
+		addF(r.A, i)
+		addF(r.B, -i)
+		a, b := idx(r.A), idx(r.B)
+		s.addJ(a, a, g)
+		s.addJ(b, b, g)
+		s.addJ(a, b, -g)
+		s.addJ(b, a, -g)
+	}
+	for _, is := range s.c.ISources {
+		i := is.I * s.scale
+		addF(is.A, i)
+		addF(is.B, -i)
+	}
+	for k, vs := range s.c.VSources {
+		row := s.nn + k
+		i := s.x[row]
+		addF(vs.P, i)
+		addF(vs.N, -i)
+		p, n := idx(vs.P), idx(vs.N)
+		s.addJ(p, row, 1)
+		s.addJ(n, row, -1)
+		val := s.sourceValue(k)
+		s.f[row] = s.v(vs.P) - s.v(vs.N) - val
+		s.fabs[row] = math.Abs(val) + math.Abs(s.v(vs.P)) + math.Abs(s.v(vs.N))
+		s.addJ(row, p, 1)
+		s.addJ(row, n, -1)
+		if j := s.servoOf[k]; j >= 0 {
+			s.addJ(row, s.nn+s.nb+j, -1)
+		}
+	}
+	for _, m := range s.c.FETs {
+		e := m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B))
+		addF(m.D, e.ID)
+		addF(m.S, -e.ID)
+		d, g, src, b := idx(m.D), idx(m.G), idx(m.S), idx(m.B)
+		gs := -(e.GM + e.GMB + e.GDS)
+		for _, t := range [...]struct {
+			col int
+			val float64
+		}{{d, e.GDS}, {g, e.GM}, {src, gs}, {b, e.GMB}} {
+			s.addJ(d, t.col, t.val)
+			s.addJ(src, t.col, -t.val)
+		}
+	}
+	for j, sv := range s.c.Servos {
+		row := s.nn + s.nb + j
+		switch sv.Kind {
+		case ServoCurrent:
+			m := s.c.FETs[sv.Target]
+			e := m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B))
+			sign := float64(m.Dev.Polarity())
+			target := sv.Value * s.scale
+			s.f[row] = sign*e.ID - target
+			s.fabs[row] = math.Abs(target) + math.Abs(e.ID)
+			d, g, src, b := idx(m.D), idx(m.G), idx(m.S), idx(m.B)
+			s.addJ(row, d, sign*e.GDS)
+			s.addJ(row, g, sign*e.GM)
+			s.addJ(row, src, -sign*(e.GM+e.GMB+e.GDS))
+			s.addJ(row, b, sign*e.GMB)
+		case ServoVoltage:
+			target := sv.Value * s.scale
+			s.f[row] = s.v(Node(sv.Target)) - target
+			s.fabs[row] = math.Abs(target)
+			s.addJ(row, idx(Node(sv.Target)), 1)
+		}
+	}
+}
+
+// residualOK says whether every equation is satisfied to tolerance, and
+// returns the worst row relative to its tolerance.
+func (s *dcSystem) residualOK() (bool, int) {
+	ok, worst, worstRatio := true, 0, -1.0
+	for i := 0; i < s.n; i++ {
+		var tol float64
+		switch {
+		case i < s.nn:
+			tol = s.opt.RelTol*s.fabs[i] + s.opt.AbsTolI
+		case i < s.nn+s.nb:
+			tol = s.opt.VoltTol + s.opt.RelTol*s.fabs[i]
+		default:
+			sv := s.c.Servos[i-s.nn-s.nb]
+			if sv.Kind == ServoCurrent {
+				tol = s.opt.RelTol*s.fabs[i] + s.opt.AbsTolI
+			} else {
+				tol = s.opt.VoltTol + s.opt.RelTol*s.fabs[i]
+			}
+		}
+		r := math.Abs(s.f[i]) / tol
+		if math.IsNaN(r) {
+			r = math.Inf(1)
+		}
+		if r > worstRatio {
+			worst, worstRatio = i, r
+		}
+		if r > 1 {
+			ok = false
+		}
+	}
+	return ok, worst
+}
+
+func (s *dcSystem) rowName(i int) string {
+	switch {
+	case i < s.nn:
+		return "node " + s.c.names[i+1]
+	case i < s.nn+s.nb:
+		return "source " + s.c.VSources[i-s.nn].Name
+	default:
+		sv := s.c.Servos[i-s.nn-s.nb]
+		return "bias condition on " + s.c.VSources[sv.Source].Name
+	}
+}
+
+// newton runs Newton–Raphson from the present x. It returns the iterations
+// used and whether it converged.
+func (s *dcSystem) newton(maxIter int) (int, bool) {
+	settled := false
+	for it := 0; it < maxIter; it++ {
+		s.assemble()
+		if ok, _ := s.residualOK(); ok && settled {
+			return it, true
+		}
+		for i := range s.f {
+			s.dx[i] = -s.f[i]
+		}
+		if err := s.lu.Factorize(s.n, s.j); err != nil {
+			return it + 1, false
+		}
+		s.lu.Solve(s.dx, s.dx)
+		// Limit the step: no voltage (node or servo value) moves more
+		// than MaxStep in one iteration.
+		big := 0.0
+		for i := 0; i < s.n; i++ {
+			if i >= s.nn && i < s.nn+s.nb {
+				continue // branch currents
+			}
+			big = math.Max(big, math.Abs(s.dx[i]))
+		}
+		if math.IsNaN(big) || math.IsInf(big, 0) {
+			return it + 1, false
+		}
+		k := 1.0
+		if big > s.opt.MaxStep {
+			k = s.opt.MaxStep / big
+		}
+		settled = true
+		for i := 0; i < s.n; i++ {
+			step := k * s.dx[i]
+			s.x[i] += step
+			if (i < s.nn || i >= s.nn+s.nb) && math.Abs(step) > s.opt.VoltTol+1e-6*math.Abs(s.x[i]) {
+				settled = false
+			}
+		}
+		for j, sv := range s.c.Servos {
+			i := s.nn + s.nb + j
+			span := sv.Hi - sv.Lo
+			lo, hi := sv.Lo-span, sv.Hi+span
+			if span > 0 {
+				s.x[i] = math.Min(math.Max(s.x[i], lo), hi)
+			}
+		}
+		if k < 1 {
+			settled = false
+		}
+	}
+	return maxIter, false
+}
+
+// Guess sets initial node voltages for the solve; nodes not listed start
+// at 0 V. A nil map is allowed.
+type Guess map[Node]float64
+
+// SolveDC finds the DC operating point. It tries plain Newton–Raphson from
+// the guess, then gmin stepping, then source stepping.
+func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
+	if err := c.Check(); err != nil {
+		return OperatingPoint{}, err
+	}
+	opt = opt.withDefaults()
+	s := newDCSystem(c, opt)
+	start := make([]float64, s.n)
+	for n, v := range guess {
+		if k := idx(n); k >= 0 && k < s.nn {
+			start[k] = v
+		}
+	}
+	for j, sv := range c.Servos {
+		start[s.nn+s.nb+j] = c.VSources[sv.Source].V
+	}
+	// Voltage sources tied to ground fix their node: start there.
+	for _, vs := range c.VSources {
+		if vs.N == Ground && idx(vs.P) >= 0 {
+			if _, given := guess[vs.P]; !given {
+				start[idx(vs.P)] = vs.V
+			}
+		}
+	}
+	total := 0
+	done := func(method string) (OperatingPoint, error) {
+		return s.result(total, method), nil
+	}
+
+	// 1. Plain Newton.
+	copy(s.x, start)
+	s.gmin, s.scale = opt.GMin, 1
+	it, ok := s.newton(opt.MaxIter)
+	total += it
+	if ok {
+		return done("newton")
+	}
+
+	// 2. gmin stepping: a large conductance from every node to ground
+	// makes the problem nearly linear; reduce it a decade at a time.
+	if !opt.NoGMin {
+		copy(s.x, start)
+		ok = true
+		for g := 1e-2; g >= opt.GMin*0.999; g /= 10 {
+			s.gmin = g
+			it, ok = s.newton(opt.MaxIter)
+			total += it
+			if !ok {
+				break
+			}
+		}
+		if ok {
+			s.gmin = opt.GMin
+			it, ok = s.newton(opt.MaxIter)
+			total += it
+			if ok {
+				return done("gmin stepping")
+			}
+		}
+	}
+
+	// 3. Source stepping: ramp every source (and servo target) from zero.
+	if !opt.NoSource {
+		for i := range s.x {
+			s.x[i] = 0
+		}
+		s.gmin = opt.GMin
+		scale, step := 0.0, 0.1
+		prev := make([]float64, s.n)
+		for scale < 1 && step > 1e-4 {
+			next := math.Min(1, scale+step)
+			copy(prev, s.x)
+			s.scale = next
+			it, ok = s.newton(opt.MaxIter / 2)
+			total += it
+			if ok {
+				scale = next
+				step = math.Min(step*1.5, 0.25)
+			} else {
+				copy(s.x, prev)
+				step /= 2
+			}
+		}
+		if scale >= 1 {
+			return done("source stepping")
+		}
+	}
+
+	s.scale, s.gmin = 1, opt.GMin
+	s.assemble()
+	_, worst := s.residualOK()
+	return OperatingPoint{}, &NoConvergenceError{
+		Iterations: total,
+		Node:       s.rowName(worst),
+		Residual:   math.Abs(s.f[worst]),
+		Reason:     "every method failed",
+	}
+}
+
+func (s *dcSystem) result(iters int, method string) OperatingPoint {
+	op := OperatingPoint{
+		V:          make([]float64, s.nn+1),
+		Branch:     make([]float64, s.nb),
+		Source:     make([]float64, s.nb),
+		Iterations: iters,
+		Method:     method,
+	}
+	copy(op.V[1:], s.x[:s.nn])
+	copy(op.Branch, s.x[s.nn:s.nn+s.nb])
+	for k := range op.Source {
+		op.Source[k] = s.sourceValue(k)
+	}
+	return op
+}
+
+// KCL returns the current imbalance at every node (index = node, entry 0
+// unused) at op, and the sum of current magnitudes there, from the element
+// equations alone (no gmin). Tests use it to check a solution.
+func (c *Circuit) KCL(op OperatingPoint) (imbalance, magnitude []float64) {
+	n := len(c.names)
+	imbalance = make([]float64, n)
+	magnitude = make([]float64, n)
+	add := func(node Node, i float64) {
+		imbalance[node] += i
+		magnitude[node] += math.Abs(i)
+	}
+	v := func(node Node) float64 { return op.V[node] }
+	for _, r := range c.Resistors {
+		if math.IsInf(r.R, 1) || r.ACOnly {
+			continue
+		}
+		i := (v(r.A) - v(r.B)) / r.R
+		add(r.A, i)
+		add(r.B, -i)
+	}
+	for _, is := range c.ISources {
+		add(is.A, is.I)
+		add(is.B, -is.I)
+	}
+	for k, vs := range c.VSources {
+		add(vs.P, op.Branch[k])
+		add(vs.N, -op.Branch[k])
+	}
+	for _, m := range c.FETs {
+		e := m.Dev.Current(v(m.D), v(m.G), v(m.S), v(m.B))
+		add(m.D, e.ID)
+		add(m.S, -e.ID)
+	}
+	return imbalance, magnitude
+}

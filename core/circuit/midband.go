@@ -1,0 +1,97 @@
+package circuit
+
+import (
+	"math"
+
+	"stagewright/core/dense"
+)
+
+// Midband is the low-frequency small-signal behaviour (capacitors open).
+type Midband struct {
+	Gain float64 // v(out)/v(signal), with the load resistance connected
+	Rin  float64 // Ω looking into In, signal-source resistance excluded; +Inf when open
+	Rout float64 // Ω looking into Out with the signal shorted, load resistance excluded; +Inf when open
+}
+
+// Midband computes gain, input and output resistance numerically from the
+// conductance matrix: the gain from a unit signal, each resistance by
+// driving its port with a unit test voltage and measuring the current the
+// test source delivers.
+func (nw *Network) Midband() (Midband, error) {
+	n := nw.N
+	var m Midband
+	var lu dense.LU
+	if nw.Out < 0 {
+		return m, errNoPort("output")
+	}
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = -nw.GSig[i]
+	}
+	if err := lu.Factorize(n, nw.G); err != nil {
+		return m, err
+	}
+	lu.Solve(x, x)
+	m.Gain = x[nw.Out]
+	if nw.In >= 0 {
+		g := append([]float64(nil), nw.G...)
+		g[nw.In*n+nw.In] -= nw.RSigG
+		m.Rin = driveResistance(g, n, nw.In)
+	} else {
+		m.Rin = math.Inf(1)
+	}
+	g := append([]float64(nil), nw.G...)
+	g[nw.Out*n+nw.Out] -= nw.RLG
+	m.Rout = driveResistance(g, n, nw.Out)
+	return m, nil
+}
+
+type errNoPort string
+
+func (e errNoPort) Error() string { return "midband: the " + string(e) + " node is held by a source" }
+
+// driveResistance holds node k of the conductance matrix g at 1 V, solves
+// the other nodes, and returns 1/(current into node k). It returns +Inf when
+// no current flows (an open port) or the rest of the network is singular.
+func driveResistance(g []float64, n, k int) float64 {
+	m := n - 1
+	sub := make([]float64, m*m)
+	rhs := make([]float64, m)
+	for i, ii := 0, 0; i < n; i++ {
+		if i == k {
+			continue
+		}
+		rhs[ii] = -g[i*n+k]
+		for j, jj := 0, 0; j < n; j++ {
+			if j == k {
+				continue
+			}
+			sub[ii*m+jj] = g[i*n+j]
+			jj++
+		}
+		ii++
+	}
+	if m > 0 {
+		var lu dense.LU
+		if err := lu.Factorize(m, sub); err != nil {
+			return math.Inf(1)
+		}
+		lu.Solve(rhs, rhs)
+	}
+	cur := g[k*n+k]
+	scale := math.Abs(g[k*n+k])
+	for j, jj := 0, 0; j < n; j++ {
+		if j == k {
+			continue
+		}
+		cur += g[k*n+j] * rhs[jj]
+		scale += math.Abs(g[k*n+j] * rhs[jj])
+		jj++
+	}
+	// A current that is only rounding noise of the terms that make it up
+	// means the port is open.
+	if math.Abs(cur) <= 1e-13*scale || cur == 0 {
+		return math.Inf(1)
+	}
+	return 1 / cur
+}

@@ -1,0 +1,34 @@
+package circuit
+
+import "stagewright/core/dense"
+
+// Poles returns the natural frequencies of the network, s in rad/s: the
+// finite roots of det(G + s·C) = 0.
+func (nw *Network) Poles() ([]complex128, error) {
+	return dense.PencilRoots(nw.N, nw.G, nw.C)
+}
+
+// Zeros returns the finite zeros, s in rad/s, of the transfer function from
+// the signal source to the output: the roots of the bordered determinant
+//
+//	det [ Y(s)  b(s) ]
+//	    [ e_outᵀ  0  ] = −det Y(s) · H(s),  b(s) = −(GSig + s·CSig).
+func (nw *Network) Zeros() ([]complex128, error) {
+	if nw.Out < 0 {
+		return nil, errNoPort("output")
+	}
+	n := nw.N
+	m := n + 1
+	g := make([]float64, m*m)
+	c := make([]float64, m*m)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			g[i*m+j] = nw.G[i*n+j]
+			c[i*m+j] = nw.C[i*n+j]
+		}
+		g[i*m+n] = -nw.GSig[i]
+		c[i*m+n] = -nw.CSig[i]
+	}
+	g[n*m+nw.Out] = 1
+	return dense.PencilRoots(m, g, c)
+}

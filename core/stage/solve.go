@@ -1,0 +1,271 @@
+package stage
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"stagewright/core/circuit"
+	"stagewright/core/device"
+	"stagewright/core/units"
+)
+
+// Solution is a biased stage: the circuit, its DC operating point and the
+// device reports at that point.
+type Solution struct {
+	*Built
+	OP         circuit.OperatingPoint
+	Iterations int     // Newton iterations, all solves included (a gm/ID search runs several)
+	W          float64 // M1 width as used (solved in gm/ID mode)
+	Warnings   []string
+}
+
+// Node returns the DC voltage of a named node, and false if the stage has no such node.
+func (s *Solution) Node(name string) (float64, bool) {
+	n, ok := s.Nodes[name]
+	if !ok {
+		return 0, false
+	}
+	return s.OP.V[n], true
+}
+
+// Report is M1's (i = 1) or M2's (i = 2) operating-point report.
+func (s *Solution) Report(i int) device.Report {
+	m := s.C.FETs[s.M1]
+	if i == 2 {
+		m = s.C.FETs[s.M2]
+	}
+	v := s.OP.V
+	return m.Dev.Report(v[m.D], v[m.G], v[m.S], v[m.B])
+}
+
+// SupplyCurrent is the current the VDD source delivers, A.
+func (s *Solution) SupplyCurrent() float64 { return -s.OP.Branch[s.Supply] }
+
+func eng(v float64, unit string) string { return units.Engineering(v, 3, unit) }
+
+// Solve biases the stage: it checks that the requested bias can exist at
+// all, solves the operating point, and for gm/ID mode searches W.
+func Solve(spec Spec) (*Solution, error) {
+	if err := spec.check(); err != nil {
+		return nil, err
+	}
+	if err := feasible(&spec); err != nil {
+		return nil, err
+	}
+	if spec.Bias == ByGmID {
+		return solveGmID(spec)
+	}
+	return solveOnce(spec, nil)
+}
+
+// feasible catches requests that no operating point can meet, with the
+// reason in the user's terms.
+func feasible(s *Spec) error {
+	if s.Bias == ByVin {
+		return nil
+	}
+	if s.Load == Resistor {
+		r, key, name := s.RD, "rd", "RD"
+		if s.Kind == SF {
+			r, key, name = s.RS, "rs", "RS"
+		}
+		if drop := s.ID * r; drop >= s.VDD {
+			return errorf(key, "no operating point: M1 cannot carry %s from a %s supply with %s = %s (the resistor alone would drop %s)",
+				eng(s.ID, "A"), eng(s.VDD, "V"), name, eng(r, "Ω"), eng(drop, "V"))
+		}
+	}
+	if s.Kind == CS && s.RS > 0 {
+		if drop := s.ID * s.RS; drop >= s.VDD {
+			return errorf("rs", "no operating point: M1 cannot carry %s from a %s supply with RS = %s (RS alone would drop %s)",
+				eng(s.ID, "A"), eng(s.VDD, "V"), eng(s.RS, "Ω"), eng(drop, "V"))
+		}
+	}
+	if (s.Load == Active) && s.Kind != SF && (s.VOut <= 0 || s.VOut >= s.VDD) {
+		return errorf("vout", "the output level vout = %s must lie inside the supply (0 … %s)", eng(s.VOut, "V"), eng(s.VDD, "V"))
+	}
+	return nil
+}
+
+func solveOnce(spec Spec, warm []float64) (*Solution, error) {
+	b, err := Build(spec)
+	if err != nil {
+		return nil, err
+	}
+	guess := b.Guess
+	if warm != nil && len(warm) == b.C.NodeCount() {
+		guess = circuit.Guess{}
+		for i, v := range warm {
+			guess[circuit.Node(i)] = v
+		}
+	}
+	op, err := b.C.SolveDC(guess, circuit.Options{})
+	if err != nil {
+		var nc *circuit.NoConvergenceError
+		if errors.As(err, &nc) {
+			return nil, &Error{Key: biasKey(spec), Message: "no operating point: " + explainFailure(spec) + " (" + nc.Error() + ")"}
+		}
+		return nil, err
+	}
+	sol := &Solution{Built: b, OP: op, Iterations: op.Iterations, W: spec.W}
+	if err := sol.checkServos(); err != nil {
+		return nil, err
+	}
+	sol.warn()
+	return sol, nil
+}
+
+func biasKey(s Spec) string {
+	if s.Bias == ByVin {
+		return "vin"
+	}
+	return "id"
+}
+
+func explainFailure(s Spec) string {
+	if s.Bias == ByVin {
+		return fmt.Sprintf("the %s stage has no DC solution with the input at %s", s.Kind, eng(s.Vin, "V"))
+	}
+	return fmt.Sprintf("M1 cannot be biased at %s in this %s stage from a %s supply", eng(s.ID, "A"), s.Kind, eng(s.VDD, "V"))
+}
+
+// checkServos rejects solutions whose solved bias voltages fall outside
+// the supply: the request is met only by a bias no circuit could supply.
+func (s *Solution) checkServos() error {
+	const slack = 1e-6 // V: solved values this close to a rail count as inside
+	for _, sv := range s.C.Servos {
+		v := s.OP.Source[sv.Source]
+		if v >= sv.Lo-slack && v <= sv.Hi+slack {
+			continue
+		}
+		what, key := "the input level", "id"
+		switch sv.Source {
+		case s.BiasSrc:
+			what = "the load transistor's gate"
+			if s.Spec.Kind != SF {
+				key = "vout"
+			}
+		case s.Input:
+			if s.Spec.Kind == CG {
+				what = "the source-side input level"
+			} else {
+				what = "M1's gate"
+			}
+		}
+		goal := "to carry " + eng(s.Spec.ID, "A")
+		if sv.Kind == circuit.ServoVoltage {
+			goal = "to hold the output at " + eng(sv.Value, "V")
+		}
+		return &Error{Key: key, Message: fmt.Sprintf("no operating point: %s would have to sit at %s, outside the 0 … %s supply, %s; change W/L, the current or the load",
+			what, eng(v, "V"), eng(s.Spec.VDD, "V"), goal)}
+	}
+	return nil
+}
+
+// warn lists conditions a designer should see: a device out of saturation,
+// a nearly-off device.
+func (s *Solution) warn() {
+	check := func(name string, r device.Report) {
+		switch r.Region {
+		case device.Triode:
+			s.Warnings = append(s.Warnings, fmt.Sprintf("%s is in triode: |VDS| − VDsat = %s", name, eng(r.Margin, "V")))
+		case device.Cutoff:
+			s.Warnings = append(s.Warnings, fmt.Sprintf("%s is practically off (inversion coefficient %.2g)", name, r.IC))
+		}
+	}
+	check("M1", s.Report(1))
+	if s.M2 >= 0 {
+		check("M2", s.Report(2))
+	}
+}
+
+// solveGmID finds W at the given L such that M1 runs at the target gm/ID
+// with the target current. gm/ID rises monotonically as W grows (the
+// inversion coefficient falls), so a bracketed secant search on log W
+// converges in a few solves; the EKV saturation relation gives the start.
+func solveGmID(spec Spec) (*Solution, error) {
+	pr := spec.Process
+	wmin, wmax := pr.WMin, pr.WMax
+	target := spec.GmID
+	// Start: the EKV relation gm·n·UT/ID = 2/(1+√(1+4·IC)) at n ≈ 1.3.
+	probe, err := device.New(spec.Pol, pr.Params(spec.Pol), pr.TNom, spec.W, spec.L, spec.TempK)
+	if err != nil {
+		return nil, errorf("w", "transistor M1: %v", err)
+	}
+	ut := device.ThermalVoltage(spec.TempK)
+	rep0 := probe.Report(0, 0, 0, 0)
+	n0 := 1.3
+	if limit := 1 / (n0 * ut); target >= 0.98*limit {
+		return nil, errorf("gmid", "gm/ID = %.3g S/A is at or above the weak-inversion limit 1/(n·UT) ≈ %.3g S/A of this device", target, limit)
+	}
+	x := 2/(target*n0*ut) - 1
+	ic := (x*x - 1) / 4
+	if !(ic > 0) {
+		ic = 1
+	}
+	// Ispec scales with W: Ispec(W) = Ispec0·W/W0, so W = ID/(IC·Ispec0/W0).
+	w0 := spec.W
+	ispecPerW := rep0.Ispec / w0
+	w := spec.ID / (ic * ispecPerW)
+	w = math.Min(math.Max(w, wmin), wmax)
+
+	type point struct{ lw, g float64 }
+	var lo, hi *point
+	var best *Solution
+	var warm []float64
+	total := 0
+	eval := func(w float64) (float64, *Solution, error) {
+		s := spec
+		s.W = w
+		s.Bias = ByID
+		sol, err := solveOnce(s, warm)
+		if err != nil {
+			return 0, nil, err
+		}
+		total += sol.Iterations
+		warm = sol.OP.V
+		return sol.Report(1).GmID, sol, nil
+	}
+	for it := 0; it < 40; it++ {
+		g, sol, err := eval(w)
+		if err != nil {
+			return nil, err
+		}
+		best = sol
+		if math.Abs(g-target) <= 1e-6*target {
+			break
+		}
+		p := &point{math.Log(w), g}
+		if g < target {
+			lo = p
+		} else {
+			hi = p
+		}
+		var next float64
+		switch {
+		case lo != nil && hi != nil:
+			// Secant inside the bracket, bisection if it leaves it.
+			next = lo.lw + (target-lo.g)*(hi.lw-lo.lw)/(hi.g-lo.g)
+			if !(next > math.Min(lo.lw, hi.lw) && next < math.Max(lo.lw, hi.lw)) || it%4 == 3 {
+				next = (lo.lw + hi.lw) / 2
+			}
+		case lo != nil:
+			if w >= wmax {
+				return nil, errorf("gmid", "gm/ID = %.3g S/A needs M1 wider than the process allows (%s at %s gives only %.3g S/A)", target, eng(wmax, "m"), eng(spec.ID, "A"), g)
+			}
+			next = math.Min(math.Log(wmax), lo.lw+math.Log(4))
+		default:
+			if w <= wmin {
+				return nil, errorf("gmid", "gm/ID = %.3g S/A needs M1 narrower than the process allows (%s at %s gives %.3g S/A)", target, eng(wmin, "m"), eng(spec.ID, "A"), g)
+			}
+			next = math.Max(math.Log(wmin), hi.lw-math.Log(4))
+		}
+		w = math.Exp(next)
+	}
+	best.Iterations = total
+	best.W = best.Spec.W
+	if g := best.Report(1).GmID; math.Abs(g-target) > 1e-3*target {
+		best.Warnings = append(best.Warnings, fmt.Sprintf("gm/ID search stopped at %.4g S/A for a target of %.4g S/A", g, target))
+	}
+	return best, nil
+}
