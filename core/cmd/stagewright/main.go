@@ -1,0 +1,114 @@
+// Command stagewright evaluates amplifier designs written as URL fragments.
+//
+//	stagewright eval 'v=1&stage=cs&pol=n&w=20u&l=0.5u'   one design, one JSON result
+//	stagewright eval -                                   one fragment per line on standard input, one JSON line each
+//	stagewright keys                                     the fragment keys as a Markdown table
+//
+// The exit status is 0 when every design was evaluated, 1 when a design
+// could not be (a bad fragment, no operating point), and 2 for a usage
+// error.
+package main
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"stagewright/core/design"
+)
+
+const usage = `usage:
+  stagewright eval FRAGMENT   evaluate one design (the text after '#' in the page's address)
+  stagewright eval -          evaluate one fragment per line from standard input
+  stagewright keys            print the fragment keys as a Markdown table
+`
+
+func main() { os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)) }
+
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, usage)
+		return 2
+	}
+	switch args[0] {
+	case "eval":
+		if len(args) != 2 {
+			fmt.Fprint(stderr, "stagewright eval: give exactly one fragment, or - to read fragments from standard input\n"+usage)
+			return 2
+		}
+		if args[1] == "-" {
+			return evalLines(stdin, stdout, stderr)
+		}
+		return evalOne(args[1], stdout, stderr)
+	case "keys":
+		fmt.Fprint(stdout, design.KeyTableMarkdown())
+		return 0
+	case "-h", "-help", "--help", "help":
+		fmt.Fprint(stdout, usage)
+		return 0
+	default:
+		fmt.Fprintf(stderr, "stagewright: unknown command %q\n%s", args[0], usage)
+		return 2
+	}
+}
+
+// status is the exit status of one result: a fragment with problems or a
+// design with no operating point is a design error.
+func status(r *design.Result) int {
+	if !r.OK || len(r.Problems) > 0 {
+		return 1
+	}
+	return 0
+}
+
+func evalOne(fragment string, stdout, stderr io.Writer) int {
+	var e design.Evaluator
+	r := e.EvaluateFragment(fragment)
+	stdout.Write(append(r.JSON(), '\n'))
+	if st := status(&r); st != 0 {
+		fmt.Fprintln(stderr, "stagewright:", oneLine(&r))
+		return st
+	}
+	return 0
+}
+
+func evalLines(stdin io.Reader, stdout, stderr io.Writer) int {
+	var e design.Evaluator
+	sc := bufio.NewScanner(stdin)
+	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	worst, line := 0, 0
+	w := bufio.NewWriter(stdout)
+	defer w.Flush()
+	for sc.Scan() {
+		line++
+		text := strings.TrimSpace(sc.Text())
+		if text == "" || strings.HasPrefix(text, "//") {
+			continue
+		}
+		r := e.EvaluateFragment(text)
+		w.Write(append(r.JSON(), '\n'))
+		if st := status(&r); st != 0 {
+			fmt.Fprintf(stderr, "stagewright: line %d: %s\n", line, oneLine(&r))
+			worst = st
+		}
+	}
+	if err := sc.Err(); err != nil {
+		fmt.Fprintln(stderr, "stagewright: reading standard input:", err)
+		return 2
+	}
+	return worst
+}
+
+// oneLine is the error of a result in one line.
+func oneLine(r *design.Result) string {
+	var parts []string
+	for _, p := range r.Problems {
+		parts = append(parts, p.String())
+	}
+	if r.Error != nil && (len(r.Problems) == 0 || r.Error.Code != "fragment") {
+		parts = append(parts, r.Error.Message)
+	}
+	return strings.Join(parts, "; ")
+}
