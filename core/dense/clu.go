@@ -53,12 +53,10 @@ func (f *CLU) Factorize(n int, a []complex128) error {
 	lu := f.a
 	copy(lu, a)
 	copy(f.orig, a)
-	scale := 0.0
 	for i, v := range a {
 		if !isFiniteC(v) {
 			return &NotFiniteError{Row: i / n, Col: i % n, Value: v}
 		}
-		scale = math.Max(scale, abs1(v))
 	}
 	for k := 0; k < n; k++ {
 		p, best := k, abs1(lu[k*n+k])
@@ -68,7 +66,7 @@ func (f *CLU) Factorize(n int, a []complex128) error {
 			}
 		}
 		if !(best >= minPivot) {
-			return &SingularError{N: n, Col: k, Pivot: best, Scale: scale}
+			return &SingularError{N: n, Col: k, Pivot: best, Scale: maxAbsC(a)}
 		}
 		f.piv[k] = p
 		rowK := lu[k*n : k*n+n]
@@ -205,7 +203,9 @@ func (f *CLU) RCond() float64 {
 		for i := 0; i < n; i++ {
 			s += cmplx.Abs(f.orig[i*n+j])
 		}
-		norm = math.Max(norm, s)
+		if s > norm {
+			norm = s
+		}
 	}
 	r := 1 / (norm * f.invNorm1())
 	if !(r >= 0) {
@@ -291,4 +291,16 @@ func cargMaxAbs(v []complex128) int {
 		}
 	}
 	return j
+}
+
+// maxAbsC returns the largest |Re|+|Im| in a; it is used for error reports
+// only.
+func maxAbsC(a []complex128) float64 {
+	m := 0.0
+	for _, v := range a {
+		if x := abs1(v); x > m {
+			m = x
+		}
+	}
+	return m
 }

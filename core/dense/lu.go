@@ -24,7 +24,7 @@ type SingularError struct {
 	N     int     // order of the matrix
 	Col   int     // 0-based column (unknown) where elimination stopped
 	Pivot float64 // magnitude of the best pivot candidate in that column
-	Scale float64 // largest entry magnitude of the input matrix
+	Scale float64 // largest entry magnitude of the input matrix (|Re|+|Im| for CLU)
 }
 
 func (e *SingularError) Error() string {
@@ -56,7 +56,9 @@ func (e *NotFiniteError) Error() string {
 // Unwrap returns ErrNotFinite.
 func (e *NotFiniteError) Unwrap() error { return ErrNotFinite }
 
-func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+// isFinite reports whether v is neither NaN nor ±Inf (one comparison: NaN
+// compares false).
+func isFinite(v float64) bool { return math.Abs(v) <= math.MaxFloat64 }
 
 // LU is an LU factorization with partial pivoting, P·A = L·U, of a real n×n
 // matrix A. The zero value is ready to use; it reuses its storage across
@@ -108,12 +110,10 @@ func (f *LU) Factorize(n int, a []float64) error {
 	lu := f.a
 	copy(lu, a)
 	copy(f.orig, a)
-	scale := 0.0
 	for i, v := range a {
 		if !isFinite(v) {
 			return &NotFiniteError{Row: i / n, Col: i % n, Value: complex(v, 0)}
 		}
-		scale = math.Max(scale, math.Abs(v))
 	}
 	for k := 0; k < n; k++ {
 		p, best := k, math.Abs(lu[k*n+k])
@@ -123,7 +123,7 @@ func (f *LU) Factorize(n int, a []float64) error {
 			}
 		}
 		if !(best >= minPivot) {
-			return &SingularError{N: n, Col: k, Pivot: best, Scale: scale}
+			return &SingularError{N: n, Col: k, Pivot: best, Scale: maxAbs(a)}
 		}
 		f.piv[k] = p
 		rowK := lu[k*n : k*n+n]
@@ -260,7 +260,9 @@ func (f *LU) RCond() float64 {
 		for i := 0; i < n; i++ {
 			s += math.Abs(f.orig[i*n+j])
 		}
-		norm = math.Max(norm, s)
+		if s > norm {
+			norm = s
+		}
 	}
 	inv := f.invNorm1()
 	r := 1 / (norm * inv)
@@ -351,4 +353,15 @@ func argMaxAbs(v []float64) int {
 		}
 	}
 	return j
+}
+
+// maxAbs returns the largest |v| in a; it is used for error reports only.
+func maxAbs(a []float64) float64 {
+	m := 0.0
+	for _, v := range a {
+		if x := math.Abs(v); x > m {
+			m = x
+		}
+	}
+	return m
 }

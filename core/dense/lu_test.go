@@ -165,3 +165,143 @@ func TestLUNotFinite(t *testing.T) {
 		}
 	}
 }
+
+// exactRCond returns 1/(‖A‖₁·‖A⁻¹‖₁) with A⁻¹ from gonum's Inverse (the
+// independent reference).
+func exactRCond(t *testing.T, n int, a []float64) float64 {
+	t.Helper()
+	am := mat.NewDense(n, n, append([]float64(nil), a...))
+	var inv mat.Dense
+	if err := inv.Inverse(am); err != nil {
+		t.Fatalf("gonum Inverse: %v", err)
+	}
+	return 1 / (mat.Norm(am, 1) * mat.Norm(&inv, 1))
+}
+
+func hilbert(n int) []float64 {
+	a := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			a[i*n+j] = 1 / float64(i+j+1)
+		}
+	}
+	return a
+}
+
+// checkRCond holds an estimate to the two properties of Hager–Higham
+// estimation (Higham, ACM TOMS 14, 1988, from memory): ‖A⁻¹‖₁ is estimated
+// from below, so est ≥ exact; and the estimate is rarely more than a factor
+// 3 off, so est ≤ 10·exact. The slack 1e-3 on the lower side covers the
+// rounding error of the reference inverse, about n·eps·κ relative, for κ up
+// to 1e11.
+func checkRCond(t *testing.T, what string, est, exact float64) {
+	t.Helper()
+	if est < exact*(1-1e-3) || est > 10*exact {
+		t.Errorf("%s: RCond = %.4g, exact %.4g: want within [exact, 10·exact]", what, est, exact)
+	}
+}
+
+func TestLURCond(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	var f LU
+	for n := 1; n <= 12; n++ {
+		for trial := 0; trial < 10; trial++ {
+			a := randomMatrix(rng, n)
+			if err := f.Factorize(n, a); err != nil {
+				t.Fatal(err)
+			}
+			checkRCond(t, "random", f.RCond(), exactRCond(t, n, a))
+		}
+	}
+	// Hilbert matrices: κ₁ grows like e^(3.5n), about 3e10 at n = 8 (common
+	// practice); the factorization must still succeed.
+	for n := 2; n <= 8; n++ {
+		a := hilbert(n)
+		if err := f.Factorize(n, a); err != nil {
+			t.Fatalf("Hilbert %d: %v", n, err)
+		}
+		checkRCond(t, "Hilbert", f.RCond(), exactRCond(t, n, a))
+	}
+	// Scaling A leaves the condition number unchanged (a property of any
+	// norm-wise condition number); the estimator must not see the scale.
+	a := randomMatrix(rng, 5)
+	f.Factorize(5, a)
+	r1 := f.RCond()
+	for i := range a {
+		a[i] *= 1e-15 // a capacitance-sized matrix
+	}
+	f.Factorize(5, a)
+	// Multiplying by 1e-15 rounds each entry once, so the estimate moves by
+	// a few eps relative at most; 1e-12 is a generous bound.
+	if r2 := f.RCond(); math.Abs(r2-r1) > 1e-12*r1 {
+		t.Errorf("RCond of 1e-15·A = %.15g, of A = %.15g: want equal", r2, r1)
+	}
+}
+
+func TestLUZeroOrder(t *testing.T) {
+	var f LU
+	if err := f.Factorize(0, nil); err != nil {
+		t.Fatal(err)
+	}
+	f.Solve(nil, nil)
+	f.SolveTrans(nil, nil)
+	if r := f.RCond(); r != 1 {
+		t.Errorf("RCond of a 0×0 matrix = %g, want 1", r)
+	}
+}
+
+func TestLUMisusePanics(t *testing.T) {
+	tests := []struct {
+		name string
+		do   func()
+	}{
+		{"Solve after singular Factorize", func() {
+			var f LU
+			_ = f.Factorize(1, []float64{0})
+			f.Solve(make([]float64, 1), make([]float64, 1))
+		}},
+		{"Solve with wrong length", func() {
+			var f LU
+			_ = f.Factorize(1, []float64{2})
+			f.Solve(make([]float64, 2), make([]float64, 2))
+		}},
+		{"Factorize with wrong length", func() {
+			var f LU
+			_ = f.Factorize(2, []float64{1, 2, 3})
+		}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("no panic, want one for a programming error")
+				}
+			}()
+			tt.do()
+		})
+	}
+}
+
+func TestLUAllocs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	var f LU
+	// Factor the largest size first: smaller sizes must reuse its storage.
+	if err := f.Factorize(12, randomMatrix(rng, 12)); err != nil {
+		t.Fatal(err)
+	}
+	for n := 1; n <= 12; n++ {
+		a := randomMatrix(rng, n)
+		b, x := randomMatrix(rng, n)[:n], make([]float64, n)
+		allocs := testing.AllocsPerRun(50, func() {
+			if err := f.Factorize(n, a); err != nil {
+				t.Fatal(err)
+			}
+			f.Solve(x, b)
+			f.SolveTrans(x, b)
+			_ = f.RCond()
+		})
+		if allocs != 0 {
+			t.Errorf("n=%d: %g allocations per Factorize+Solve+SolveTrans+RCond, want 0", n, allocs)
+		}
+	}
+}
