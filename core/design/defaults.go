@@ -34,14 +34,27 @@ func defaultsOf(pr *device.Process) processDefaults {
 	return builtinDefaults[defaultProcess]
 }
 
+// processes holds a copy of every built-in process, read once; the key
+// table only reads them.
+var processes = func() map[string]*device.Process {
+	m := map[string]*device.Process{}
+	for _, name := range device.BuiltinNames() {
+		pr, _ := device.Builtin(name)
+		m[name] = &pr
+	}
+	return m
+}()
+
 // lookupProcess returns the built-in process called name, or d180 when
-// there is none by that name.
-func lookupProcess(name string) device.Process {
-	if pr, ok := device.Builtin(name); ok {
+// there is none by that name. The result is shared: never modify it.
+func lookupProcess(name string) *device.Process {
+	if pr, ok := processes[name]; ok {
 		return pr
 	}
-	pr, _ := device.Builtin(defaultProcess)
-	return pr
+	if pr, ok := processes[defaultProcess]; ok {
+		return pr
+	}
+	return &device.Process{}
 }
 
 // Default returns the default design for the built-in process proc; ""

@@ -142,7 +142,7 @@ func Decode(fragment string) (Design, error) {
 	slices.SortFunc(d.Overrides, compareOverrides)
 	pr := lookupProcess(d.Process)
 	for _, pol := range [...]byte{'n', 'p'} {
-		if key, msg := dopingProblem(&pr, d.Overrides, pol); key != "" {
+		if key, msg := dopingProblem(pr, d.Overrides, pol); key != "" {
 			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key })
 			g := overrides[slices.IndexFunc(overrides, func(o givenOverride) bool { return o.key == key })]
 			report(g.pos, key, g.text, msg)
@@ -197,14 +197,14 @@ func resolve(given *[numKeys]givenValue) (Design, []placedProblem) {
 			v, ok := 0.0, false
 			if g.present && !g.bad {
 				var msg string
-				if v, msg = k.parse(&pr, &d, g.text); msg != "" {
+				if v, msg = k.parse(pr, &d, g.text); msg != "" {
 					problems = append(problems, placedProblem{g.pos, Problem{k.name, g.text, msg}})
 				} else {
 					ok = true
 				}
 			}
 			if !ok {
-				v = k.def(&pr, &d)
+				v = k.def(pr, &d)
 			}
 			k.set(&d, v)
 		}
@@ -451,7 +451,7 @@ func (d *Design) appendFragment(b []byte) []byte {
 			}
 		} else {
 			v := k.get(d)
-			if relevant || v != k.def(&pr, d) {
+			if relevant || v != k.def(pr, d) {
 				pair(k.name)
 				b = appendNumber(b, v, k.integer, k.infOK)
 			}
@@ -500,7 +500,7 @@ func (d Design) Validate() error {
 			}
 		} else {
 			v := k.get(&d)
-			if msg := k.check(&pr, &d, v); msg != "" {
+			if msg := k.check(pr, &d, v); msg != "" {
 				text := string(appendNumber(nil, v, k.integer, k.infOK))
 				problems = append(problems, Problem{k.name, text, msg})
 			}
@@ -525,7 +525,7 @@ func (d Design) Validate() error {
 	}
 	pr = lookupProcess(d.Process)
 	for _, pol := range [...]byte{'n', 'p'} {
-		if key, msg := dopingProblem(&pr, d.Overrides, pol); key != "" {
+		if key, msg := dopingProblem(pr, d.Overrides, pol); key != "" {
 			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key })
 			problems = append(problems, Problem{key, units.Exact(d.Overrides[j].Value), msg})
 		}
@@ -542,20 +542,21 @@ func (d Design) Validate() error {
 // blame (phi when it is overridden, else nsub) and the message, or "" when
 // the rule holds or no override of pol takes part.
 func dopingProblem(pr *device.Process, overrides []Override, pol byte) (key, message string) {
-	params := pr.N
+	phiKey, nsubKey, params := "n.phi", "n.nsub", &pr.N
 	if pol == 'p' {
-		params = pr.P
+		phiKey, nsubKey, params = "p.phi", "p.nsub", &pr.P
 	}
-	phiKey, nsubKey := string(pol)+".phi", string(pol)+".nsub"
+	phi, nsub := params.Phi, params.NSub
 	phiSet, nsubSet := false, false
 	for _, o := range overrides {
-		if f, ref, ok := lookupOverride(o.Key); ok && ref.pol == pol {
-			*f.field(&params) = o.Value
-			phiSet = phiSet || o.Key == phiKey
-			nsubSet = nsubSet || o.Key == nsubKey
+		switch o.Key {
+		case phiKey:
+			phi, phiSet = o.Value, true
+		case nsubKey:
+			nsub, nsubSet = o.Value, true
 		}
 	}
-	if params.Phi != 0 || params.NSub != 0 {
+	if phi != 0 || nsub != 0 {
 		return "", ""
 	}
 	switch {

@@ -77,12 +77,12 @@ func Schema(proc string) []KeyInfo {
 		} else {
 			// Spans and defaults read only the keys before them, which in the
 			// default design hold their defaults.
-			sp := k.span(&pr, &d)
+			sp := k.span(pr, &d)
 			info.Min, info.Max = sp.lo, sp.hi
 			info.MinFrom, info.MaxFrom = sp.loName, sp.hiName
 			info.MinExclusive, info.MaxExclusive = sp.loOpen, sp.hiOpen
 			info.Log, info.Integer = k.log, k.integer
-			if def := k.def(&pr, &d); math.IsInf(def, 1) {
+			if def := k.def(pr, &d); math.IsInf(def, 1) {
 				info.DefaultWord = "inf"
 			} else {
 				info.Default = def
@@ -93,7 +93,7 @@ func Schema(proc string) []KeyInfo {
 			for _, st := range stageWords {
 				alt := d
 				alt.Stage = Stage(st)
-				if v := k.def(&pr, &alt); v != info.Default && !math.IsInf(v, 0) {
+				if v := k.def(pr, &alt); v != info.Default && !math.IsInf(v, 0) {
 					if info.StageDefaults == nil {
 						info.StageDefaults = map[string]float64{}
 					}
