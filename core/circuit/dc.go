@@ -133,12 +133,16 @@ func (s *dcSystem) assemble() {
 	for i := range s.j {
 		s.j[i] = 0
 	}
-	addF := func(n Node, i float64) {
+	// addFm adds current i to node n's equation; m is the size of the
+	// terms that make it up, so the tolerance covers the rounding of a
+	// small difference of large terms.
+	addFm := func(n Node, i, m float64) {
 		if k := idx(n); k >= 0 {
 			s.f[k] += i
-			s.fabs[k] += math.Abs(i)
+			s.fabs[k] += m
 		}
 	}
+	addF := func(n Node, i float64) { addFm(n, i, math.Abs(i)) }
 	for k := 0; k < s.nn; k++ {
 		g := s.gmin
 		s.f[k] += g * s.x[k]
@@ -151,8 +155,9 @@ func (s *dcSystem) assemble() {
 		}
 		g := 1 / r.R
 		i := g * (s.v(r.A) - s.v(r.B))
-		addF(r.A, i)
-		addF(r.B, -i)
+		m := math.Abs(i) + 1e-6*g*(math.Abs(s.v(r.A))+math.Abs(s.v(r.B)))
+		addFm(r.A, i, m)
+		addFm(r.B, -i, m)
 		a, b := idx(r.A), idx(r.B)
 		s.addJ(a, a, g)
 		s.addJ(b, b, g)

@@ -27,7 +27,8 @@ func IntegrateRMS(f, d []float64, lo, hi float64) float64 {
 }
 
 // powerLawArea integrates p(f) = pa·(f/a)^k, the power law through (a, pa)
-// and (b, pb), from x to y (a ≤ x < y ≤ b).
+// and (b, pb), from x to y (a ≤ x < y ≤ b). For a whole segment it needs
+// no power: ∫ₐᵇ p df = (b·pb − a·pa)/(k+1).
 func powerLawArea(a, b, pa, pb, x, y float64) float64 {
 	if pa <= 0 || pb <= 0 || math.IsInf(pa, 0) || math.IsInf(pb, 0) {
 		// Fall back to the trapezoid on a zero or unbounded stretch.
@@ -37,11 +38,15 @@ func powerLawArea(a, b, pa, pb, x, y float64) float64 {
 		t := func(f float64) float64 { return pa + (pb-pa)*(f-a)/(b-a) }
 		return 0.5 * (t(x) + t(y)) * (y - x)
 	}
-	k := math.Log(pb/pa) / math.Log(b/a)
-	if math.Abs(k+1) < 1e-9 {
+	lba := math.Log(b / a)
+	k1 := math.Log(pb/pa)/lba + 1 // k + 1
+	if math.Abs(k1) < 1e-9 {
 		return pa * a * math.Log(y/x)
 	}
-	return pa / (k + 1) * (y*math.Pow(y/a, k) - x*math.Pow(x/a, k))
+	if x == a && y == b {
+		return (b*pb - a*pa) / k1
+	}
+	return pa * a / k1 * (math.Pow(y/a, k1) - math.Pow(x/a, k1))
 }
 
 // FlickerCorner returns the frequency (Hz) where the flicker part of the

@@ -17,8 +17,9 @@ import (
 // by its next Evaluate. The zero value is ready to use; it is not safe for
 // concurrent use.
 type Evaluator struct {
-	an   circuit.Analyzer
-	resp circuit.Response
+	an    circuit.Analyzer
+	resp  circuit.Response
+	sweep [3]float64 // fmin, fmax, ppd of the frequencies in resp.F
 }
 
 // Evaluate evaluates d with a fresh Evaluator.
@@ -156,8 +157,11 @@ func (e *Evaluator) Evaluate(d Design) (res Result) {
 	res.Square = &SquareLaw{Vov: Num(sq1.Vov), GM: Num(sq1.GM), Gain: Num(stage.SquareLawGain(sol.Built.Spec, sq1, sq2, m2 != nil))}
 
 	// Frequency response and noise over one sweep.
-	e.resp.F = circuit.LogSweep(e.resp.F, d.FMin, d.FMax, d.PPD)
-	e.resp.Resize(len(e.resp.F))
+	if key := [3]float64{d.FMin, d.FMax, float64(d.PPD)}; key != e.sweep || len(e.resp.F) == 0 {
+		e.resp.F = circuit.LogSweep(e.resp.F, d.FMin, d.FMax, d.PPD)
+		e.resp.Resize(len(e.resp.F))
+		e.sweep = key
+	}
 	e.an.Sweep(nw, &e.resp)
 	res.AC = figures(&e.resp, mb.Gain)
 	res.Noise = &Noise{

@@ -1,0 +1,48 @@
+package design
+
+import (
+	"fmt"
+	"testing"
+)
+
+// benchDesigns covers every stage and load, 401 sweep points (10 Hz to
+// 100 GHz at 40 points per decade).
+var benchDesigns = []string{
+	"stage=cs&load=r", "stage=cs&load=active", "stage=cs&load=diode",
+	"stage=cg&load=r&vg=0.9", "stage=cg&load=active&vg=0.9", "stage=cg&load=diode&vg=0.9",
+	"stage=sf&load=r&rs=5k", "stage=sf&load=active&vin=1.3",
+}
+
+// BenchmarkEvaluate is one full evaluation: operating point, midband,
+// 401-point sweep with impedances and noise, poles and zeros.
+func BenchmarkEvaluate(b *testing.B) {
+	for _, frag := range benchDesigns {
+		d := mustDecode(b, frag+"&fmin=10&fmax=100G&ppd=40")
+		b.Run(frag, func(b *testing.B) {
+			var e Evaluator
+			e.Evaluate(d)
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				if r := e.Evaluate(d); !r.OK {
+					b.Fatal(r.Error)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkEvaluatePoints shows how the cost grows with the sweep: the
+// allocations stay the same whatever the number of points.
+func BenchmarkEvaluatePoints(b *testing.B) {
+	for _, ppd := range []int{10, 40, 160} {
+		d := mustDecode(b, fmt.Sprintf("stage=cs&load=r&fmin=10&fmax=100G&ppd=%d", ppd))
+		b.Run(fmt.Sprintf("points=%d", d.SweepPoints()), func(b *testing.B) {
+			var e Evaluator
+			e.Evaluate(d)
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				e.Evaluate(d)
+			}
+		})
+	}
+}
