@@ -3,7 +3,9 @@ package design
 import (
 	"math"
 	"math/cmplx"
+	"os"
 	"sort"
+	"strings"
 	"testing"
 
 	"stagewright/core/device"
@@ -239,5 +241,16 @@ func checkFinite(t *testing.T, name string, r *Result) {
 	for _, p := range r.Poles {
 		fin("pole", float64(p.Re))
 		fin("pole", float64(p.Im))
+	}
+}
+
+// The README's key table is the one the code documents.
+func TestReadmeKeyTable(t *testing.T) {
+	b, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(b), KeyTableMarkdown()) {
+		t.Error("README.md's key table is stale: regenerate it with `go run ./core/cmd/stagewright keys`")
 	}
 }
