@@ -1,0 +1,272 @@
+// Controls built from the key schema (design.Schema in the core): a picker
+// for each word key, and a slider with a numeric field for each number key.
+// The controls hold no design state of their own: they show a Map of
+// key → fragment text and report edits through onEdit(key, text).
+import { h, clear } from './dom.js';
+import { parseSI, formatSI, exactSI, roundSig } from './si.js';
+
+const SLIDER_STEPS = 400; // positions of a slider; an arrow key moves one step
+const PICKERS = ['stage', 'pol', 'load', 'bias']; // shown above the schematic
+const HIDDEN = ['v']; // the format version is not a control
+
+const CHOICE_WORDS = {
+  stage: { cs: 'common source', cg: 'common gate', sf: 'source follower' },
+  pol: { n: 'n-type', p: 'p-type' },
+  load: { r: 'resistor', active: 'current source', diode: 'diode-connected' },
+  bias: { vin: 'input level', id: 'drain current', gmid: 'gm/ID' },
+};
+
+/** Whether a key matters for the stage, load and bias shown (empty list = always). */
+export function relevant(info, stage, load, bias) {
+  const ok = (list, v) => !list || list.length === 0 || list.includes(v);
+  if (Array.isArray(info.when) && info.when.length) return info.when.some((c) => ok(c.stages, stage) && ok(c.loads, load) && ok(c.biases, bias));
+  return ok(info.stages, stage) && ok(info.loads, load) && ok(info.biases, bias);
+}
+
+const infOK = (info) => Boolean(info.inf_ok || (info.choices || []).includes('inf'));
+const isWordKey = (info) => Array.isArray(info.choices) && info.choices.length > 0 && !infOK(info);
+
+/** Maps a slider position (0…SLIDER_STEPS) to a value and back. */
+export function sliderScale(info) {
+  const min = Number(info.min);
+  const max = Number(info.max);
+  const inf = infOK(info);
+  const useLog = info.log && max > 0;
+  const lo = useLog ? (min > 0 ? min : max * 1e-9) : min;
+  const zeroAt0 = useLog && !(min > 0);
+  const n = SLIDER_STEPS;
+  const first = zeroAt0 ? 1 : 0;
+  const last = inf ? n - 1 : n;
+  const toValue = (pos) => {
+    if (zeroAt0 && pos <= 0) return 0;
+    if (inf && pos >= n) return Infinity;
+    const t = (pos - first) / (last - first);
+    const v = useLog ? lo * (max / lo) ** t : lo + (max - lo) * t;
+    const r = info.integer ? Math.round(v) : roundSig(v, 3);
+    return Math.min(max, Math.max(min, r));
+  };
+  const toPos = (v) => {
+    if (v === Infinity) return inf ? n : last;
+    if (zeroAt0 && v <= 0) return 0;
+    let t = useLog ? Math.log(v / lo) / Math.log(max / lo) : (v - lo) / (max - lo);
+    if (!Number.isFinite(t)) t = 0;
+    return Math.round(first + Math.min(1, Math.max(0, t)) * (last - first));
+  };
+  return { toValue, toPos, steps: n };
+}
+
+function parseValue(info, text) {
+  const s = String(text).trim();
+  if (infOK(info) && /^(inf|∞|infinity|open|none)$/i.test(s)) return { value: Infinity };
+  const r = parseSI(s, info.unit && info.unit.length <= 2 ? info.unit : '');
+  if (r.error) return r;
+  const v = r.value;
+  if (info.integer && !Number.isInteger(v)) return { error: `${info.label} takes whole numbers` };
+  const min = Number(info.min);
+  const max = Number(info.max);
+  const zeroOK = info.zero_ok || (info.min === 0);
+  if (!(v >= min && v <= max) && !(zeroOK && v === 0)) {
+    return { error: `must be between ${formatSI(min, 4, info.unit || '')} and ${formatSI(max, 4, info.unit || '')}${infOK(info) ? ', or inf' : ''}` };
+  }
+  return { value: v };
+}
+
+function fragmentText(info, v) {
+  if (v === Infinity) return 'inf';
+  return exactSI(v);
+}
+
+function displayText(info, text) {
+  if (text === 'inf') return 'inf';
+  const r = parseSI(text);
+  if (r.error) return text;
+  if (info.integer) return String(r.value);
+  return formatSI(r.value, 4).replace('\u2009', '').replace('−', '-');
+}
+
+export class Controls {
+  /**
+   * pickerBox: where the stage/polarity/load/bias pickers go;
+   * groupBox: where the grouped sliders go; onEdit(key, text, {final}) reports a change.
+   */
+  constructor(pickerBox, groupBox, onEdit) {
+    this.pickerBox = pickerBox;
+    this.groupBox = groupBox;
+    this.onEdit = onEdit;
+    this.schema = [];
+    this.byKey = new Map();
+    this.rows = new Map(); // key → {row, slider, field, msg, info, scale}
+    this.values = new Map();
+  }
+
+  build(schema) {
+    this.schema = schema;
+    this.byKey = new Map(schema.map((k) => [k.key, k]));
+    this.rows.clear();
+    clear(this.pickerBox);
+    clear(this.groupBox);
+    for (const key of PICKERS) {
+      const info = this.byKey.get(key);
+      if (info) this.pickerBox.appendChild(this.picker(info));
+    }
+    const groups = new Map();
+    for (const info of schema) {
+      if (PICKERS.includes(info.key) || HIDDEN.includes(info.key)) continue;
+      const g = info.group || 'other';
+      if (!groups.has(g)) groups.set(g, []);
+      groups.get(g).push(info);
+    }
+    const order = ['device', 'bias', 'load', 'source and load', 'process', 'sweep'];
+    const rank = (g) => (order.includes(g) ? order.indexOf(g) : order.length);
+    const sorted = [...groups].sort((a, b) => rank(a[0]) - rank(b[0]));
+    for (const [group, infos] of sorted) {
+      const plain = infos.filter((i) => !i.key.includes('.'));
+      const overrides = infos.filter((i) => i.key.includes('.'));
+      const fs = h('fieldset', { class: 'group', 'data-group': group }, h('legend', { text: group.charAt(0).toUpperCase() + group.slice(1) }));
+      for (const info of plain) fs.appendChild(this.control(info));
+      if (overrides.length) {
+        const det = h('details', { class: 'overrides' }, h('summary', { text: `device parameters of the process (${overrides.length} overrides)` }));
+        for (const pol of ['n', 'p']) {
+          const these = overrides.filter((i) => i.key.startsWith(pol + '.'));
+          if (!these.length) continue;
+          det.appendChild(h('h4', { text: pol === 'n' ? 'n-type devices' : 'p-type devices' }));
+          for (const info of these) det.appendChild(this.control(info));
+        }
+        fs.appendChild(det);
+      }
+      this.groupBox.appendChild(fs);
+    }
+  }
+
+  picker(info) {
+    const name = `pick-${info.key}`;
+    const words = CHOICE_WORDS[info.key] || {};
+    const fs = h('fieldset', { class: 'picker', 'data-key': info.key }, h('legend', { text: info.label || info.key }));
+    const opts = h('div', { class: 'seg' });
+    for (const c of info.choices || []) {
+      const id = `${name}-${c}`;
+      const input = h('input', { type: 'radio', name, id, value: c });
+      input.addEventListener('change', () => {
+        if (input.checked) this.onEdit(info.key, c, { final: true, structural: true });
+      });
+      opts.appendChild(h('span', { class: 'seg-item' }, input, h('label', { for: id, text: words[c] || c, title: info.doc || '' })));
+    }
+    fs.appendChild(opts);
+    this.rows.set(info.key, { row: fs, info, radios: opts });
+    return fs;
+  }
+
+  control(info) {
+    const id = `k-${info.key.replace(/\./g, '-')}`;
+    if (isWordKey(info)) {
+      const sel = h('select', { id, 'aria-describedby': `${id}-doc` });
+      for (const c of info.choices) sel.appendChild(h('option', { value: c, text: c }));
+      sel.addEventListener('change', () => this.onEdit(info.key, sel.value, { final: true, structural: info.key === 'proc' }));
+      const row = h(
+        'div',
+        { class: 'ctl ctl-word', 'data-key': info.key },
+        h('label', { for: id }, h('span', { class: 'ctl-label', text: info.label || info.key }), h('code', { class: 'ctl-key', text: info.key })),
+        sel,
+        h('p', { class: 'ctl-doc', id: `${id}-doc`, text: info.doc || '' }),
+      );
+      this.rows.set(info.key, { row, info, select: sel });
+      return row;
+    }
+    const scale = sliderScale(info);
+    const slider = h('input', {
+      type: 'range', id: `${id}-slider`, min: 0, max: scale.steps, step: 1,
+      'aria-label': `${info.label || info.key} (slider${info.log ? ', logarithmic' : ''})`,
+    });
+    const field = h('input', {
+      type: 'text', id, inputmode: 'decimal', spellcheck: 'false', autocomplete: 'off', size: 8,
+      'aria-describedby': `${id}-msg ${id}-doc`,
+    });
+    const msg = h('p', { class: 'ctl-msg', id: `${id}-msg`, 'aria-live': 'polite' });
+    const unit = info.unit ? h('span', { class: 'unit', text: info.unit }) : null;
+    const row = h(
+      'div',
+      { class: 'ctl', 'data-key': info.key },
+      h('label', { for: id }, h('span', { class: 'ctl-label', text: info.label || info.key }), h('code', { class: 'ctl-key', text: info.key })),
+      h('div', { class: 'ctl-inputs' }, slider, h('span', { class: 'field' }, field, unit)),
+      msg,
+      h('p', { class: 'ctl-doc', id: `${id}-doc`, text: info.doc || '' }),
+    );
+    const entry = { row, info, slider, field, msg, scale };
+    slider.addEventListener('input', () => {
+      const v = scale.toValue(Number(slider.value));
+      const text = fragmentText(info, v);
+      field.value = displayText(info, text);
+      this.setMessage(entry, '');
+      this.onEdit(info.key, text, { final: false });
+    });
+    slider.addEventListener('change', () => {
+      const v = scale.toValue(Number(slider.value));
+      this.onEdit(info.key, fragmentText(info, v), { final: true });
+    });
+    const commit = () => {
+      const r = parseValue(info, field.value);
+      if (r.error) {
+        this.setMessage(entry, `${r.error}; keeping ${displayText(info, this.values.get(info.key) ?? '')}`);
+        return;
+      }
+      this.setMessage(entry, '');
+      slider.value = String(scale.toPos(r.value));
+      this.onEdit(info.key, fragmentText(info, r.value), { final: true });
+    };
+    field.addEventListener('change', commit);
+    field.addEventListener('keydown', (e) => {
+      if (e.key === 'Enter') {
+        e.preventDefault();
+        commit();
+      } else if (e.key === 'Escape') {
+        field.value = displayText(info, this.values.get(info.key) ?? '');
+        this.setMessage(entry, '');
+      }
+    });
+    this.rows.set(info.key, entry);
+    return row;
+  }
+
+  setMessage(entry, text) {
+    entry.msg.textContent = text;
+    entry.field.setAttribute('aria-invalid', text ? 'true' : 'false');
+    entry.row.classList.toggle('invalid', Boolean(text));
+  }
+
+  /** Shows `values` (Map key → fragment text); leaves a field being typed in alone. */
+  show(values, { stage, load, bias }, badKeys = new Set()) {
+    this.values = values;
+    for (const [key, entry] of this.rows) {
+      const info = entry.info;
+      const rel = relevant(info, stage, load, bias);
+      entry.row.hidden = !rel;
+      const text = values.has(key) ? values.get(key) : defaultText(info);
+      if (entry.radios) {
+        for (const input of entry.radios.querySelectorAll('input')) input.checked = input.value === text;
+        continue;
+      }
+      if (entry.select) {
+        entry.select.value = text;
+        continue;
+      }
+      const active = document.activeElement === entry.field;
+      const invalid = entry.row.classList.contains('invalid');
+      if (!active && !invalid) entry.field.value = displayText(info, text);
+      const v = text === 'inf' ? Infinity : parseSI(text).value;
+      if (v !== undefined && document.activeElement !== entry.slider) entry.slider.value = String(entry.scale.toPos(v));
+      entry.row.classList.toggle('flagged', badKeys.has(key));
+    }
+  }
+
+  /** Clears the "last good value" message of a key once a new value is in. */
+  clearMessage(key) {
+    const e = this.rows.get(key);
+    if (e && e.msg) this.setMessage(e, '');
+  }
+}
+
+export function defaultText(info) {
+  if (info.default_word !== undefined && info.default_word !== '') return info.default_word;
+  if (info.default === null || info.default === undefined) return infOK(info) ? 'inf' : '';
+  return exactSI(Number(info.default));
+}

@@ -1,0 +1,281 @@
+// The Stagewright page: wires the controls, the engine and the results.
+import './style.css';
+import { Engine, PAGE_VERSION } from './engine.js';
+import { Controls, defaultText } from './controls.js';
+import { drawSchematic } from './schematic.js';
+import { frequencyPlot, noisePlot } from './plots.js';
+import { drawSPlane } from './splane.js';
+import { renderOP, renderSmallSignal, renderMidband, renderEstimates, renderRoots, renderWarnings } from './results.js';
+import { download, sweepCSV } from './export.js';
+import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
+import { parseSI } from './si.js';
+import { h, clear } from './dom.js';
+
+const $ = (id) => document.getElementById(id);
+const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
+
+const state = {
+  engine: new Engine(),
+  controls: null,
+  schemaProc: null,
+  schema: [],
+  values: new Map(), // key → fragment text of the design shown
+  canonical: '', // canonical fragment of the last evaluated design
+  result: null,
+  response: null,
+  plots: {},
+  firstPlotAt: null,
+  evalMs: null,
+};
+
+function status(text, tone = '') {
+  const s = $('status');
+  s.textContent = text;
+  s.className = `status ${tone}`;
+}
+
+function fatal(message) {
+  status(`The engine could not start: ${message}`, 'bad');
+  document.body.classList.add('engine-failed');
+  document.body.dataset.state = 'failed';
+}
+
+/** The fragment as the page currently holds it (without '#'). */
+function currentHash() {
+  return location.hash.startsWith('#') ? location.hash.slice(1) : location.hash;
+}
+
+async function loadSchema(proc) {
+  if (state.schemaProc === proc && state.schema.length) return;
+  const { response } = await state.engine.call('schema', proc);
+  if (response.error) throw new Error(`schema(${proc}): ${response.error.message}`);
+  state.schema = response.result;
+  state.schemaProc = proc;
+  state.controls.build(state.schema);
+}
+
+function schemaDefault(key) {
+  const info = state.schema.find((k) => k.key === key);
+  return info ? defaultText(info) : undefined;
+}
+
+function sameValue(a, b) {
+  if (a === b) return true;
+  const x = parseSI(a).value;
+  const y = parseSI(b).value;
+  return x !== undefined && x === y;
+}
+
+/**
+ * Builds the fragment after the user changed one key. A change of stage,
+ * polarity, load, bias mode or process keeps only the values that differ
+ * from their defaults, so that the new topology gets its own defaults.
+ */
+function editedFragment(key, text, structural) {
+  const pairs = [];
+  for (const [k, v] of state.values) {
+    if (k === key) continue;
+    if (structural && !STRUCTURAL.includes(k) && k !== 'v') {
+      const def = schemaDefault(k);
+      if (def === undefined || sameValue(def, v)) continue;
+    }
+    pairs.push([k, v]);
+  }
+  pairs.push([key, text]);
+  return joinFragment(pairs);
+}
+
+let pendingFinal = false;
+
+function onEdit(key, text, { final, structural }) {
+  const fragment = editedFragment(key, text, structural);
+  state.values = fragmentMap(fragment);
+  history.replaceState(null, '', `#${fragment}`);
+  pendingFinal = pendingFinal || final;
+  evaluate(fragment, { fromLink: false });
+}
+
+async function evaluate(fragment, { fromLink }) {
+  const proc = fragmentMap(fragment).get('proc');
+  try {
+    if (proc && proc !== state.schemaProc && /^[a-z0-9]{1,16}$/.test(proc)) await loadSchema(proc).catch(() => {});
+  } catch {
+    /* a bad process name is reported by the evaluation itself */
+  }
+  let reply;
+  try {
+    reply = await state.engine.evaluate(fragment);
+  } catch (err) {
+    fatal(err.message);
+    return;
+  }
+  if (reply.superseded) return;
+  render(reply.response, fragment, fromLink, reply.ms);
+}
+
+function render(response, fragment, fromLink, ms) {
+  state.response = response;
+  const r = response.result;
+  const err = response.error;
+  if (!r) {
+    status(`No result: ${err ? err.message : 'the engine gave no answer'}`, 'bad');
+    showNotice(fragment, [], err);
+    return;
+  }
+  state.result = r;
+  state.canonical = r.design || '';
+  state.evalMs = ms;
+  const proc = fragmentMap(state.canonical).get('proc');
+  if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms));
+  state.values = fragmentMap(state.canonical);
+  const problems = r.problems || [];
+  const bad = new Set(problems.map((p) => p.key));
+  const v = (k) => state.values.get(k) ?? schemaDefault(k);
+  const pick = { stage: v('stage'), load: v('load'), bias: v('bias') };
+  state.controls.show(state.values, pick, bad);
+  if (!fromLink && !problems.length && state.canonical) history.replaceState(null, '', `#${state.canonical}`);
+  showNotice(fragment, problems, r.ok ? null : r.error || err);
+  const rs = parseSI(v('rs') || '0').value || 0;
+  const rl = v('rl') === 'inf' ? Infinity : parseSI(v('rl') || 'inf').value ?? Infinity;
+  drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
+  $('schematic-caption').textContent = captionFor(pick.stage, v('pol'), pick.load);
+
+  document.body.classList.toggle('no-result', !r.ok);
+  renderWarnings($('warnings'), r);
+  if (!r.ok) {
+    status(`No operating point: ${(r.error || err || {}).message || 'the engine found none'}`, 'bad');
+    for (const id of ['midband', 'op', 'smallsignal', 'estimates']) clear($(id));
+    state.plots.ac.update(null);
+    state.plots.noise.update(null);
+    clear($('roots'));
+    drawSPlane($('splane'), [], []);
+    document.body.dataset.state = 'no-result';
+    return;
+  }
+  renderMidband($('midband'), r);
+  renderOP($('op'), r);
+  renderSmallSignal($('smallsignal'), r);
+  renderEstimates($('estimates'), r);
+  renderRoots($('roots'), r);
+  drawSPlane($('splane'), r.poles || [], r.zeros || []);
+  const shown = state.plots.ac.update(r);
+  state.plots.noise.update(r);
+  if (shown && state.firstPlotAt === null) {
+    state.firstPlotAt = performance.now();
+    document.body.dataset.firstPlotMs = String(Math.round(state.firstPlotAt));
+  }
+  status(`Computed in ${ms.toFixed(1)} ms (${r.iterations} Newton iterations).`, 'ok');
+  document.body.dataset.state = 'ready';
+  document.body.dataset.evaluations = String(Number(document.body.dataset.evaluations || 0) + 1);
+}
+
+function captionFor(stage, pol, load) {
+  const s = { cs: 'Common-source', cg: 'Common-gate', sf: 'Source-follower' }[stage] || stage;
+  const l = { r: 'resistor', active: 'current-source', diode: 'diode-connected' }[load] || load;
+  return `${s} stage, ${pol === 'p' ? 'p' : 'n'}-type amplifying device M1, ${l} load.`;
+}
+
+/** Shows fragment problems, with the link text as given (never as markup). */
+function showNotice(fragment, problems, error) {
+  const box = $('notice');
+  clear(box);
+  if (!problems.length && !error) {
+    box.hidden = true;
+    return;
+  }
+  box.hidden = false;
+  if (problems.length) {
+    const keys = [...new Set(problems.map((p) => p.key || '(whole link)'))];
+    box.appendChild(h('p', { class: 'notice-title', text: `This link has ${problems.length} problem${problems.length > 1 ? 's' : ''} (${keys.join(', ')}). The other settings were applied; the bad ones keep their defaults.` }));
+    box.appendChild(
+      h(
+        'ul',
+        {},
+        problems.map((p) => h('li', {}, h('code', { text: p.key ? `${p.key}${p.value !== '' ? '=' + p.value : ''}` : '(link)' }), `: ${p.message}`)),
+      ),
+    );
+    box.appendChild(h('p', { class: 'notice-link' }, 'Link as given: ', h('code', { class: 'given', text: fragment.length > 600 ? fragment.slice(0, 600) + '…' : fragment })));
+  }
+  if (error && error.code !== 'fragment') box.appendChild(h('p', { class: 'notice-error', text: `${error.message}` }));
+}
+
+function setupToolbar() {
+  $('copy-link').addEventListener('click', async () => {
+    const url = `${location.href.split('#')[0]}#${state.canonical || currentHash()}`;
+    const out = $('copy-out');
+    try {
+      await navigator.clipboard.writeText(url);
+      out.textContent = 'Link copied.';
+    } catch {
+      clear(out);
+      const input = h('input', { type: 'text', readonly: true, value: url, 'aria-label': 'link to this design', class: 'link-out' });
+      out.appendChild(h('span', { text: 'Copy this link: ' }));
+      out.appendChild(input);
+      input.select();
+    }
+  });
+  $('export-csv').addEventListener('click', () => {
+    if (state.result) download(new Blob([sweepCSV(state.result)], { type: 'text/csv' }), 'stagewright-sweep.csv');
+  });
+  $('export-json').addEventListener('click', () => {
+    if (state.result) download(new Blob([JSON.stringify(state.result, null, 1)], { type: 'application/json' }), 'stagewright-result.json');
+  });
+  $('png-ac').addEventListener('click', async () => {
+    const b = await state.plots.ac.png(`Frequency response — ${state.canonical}`);
+    if (b) download(b, 'stagewright-frequency-response.png');
+  });
+  $('png-noise').addEventListener('click', async () => {
+    const b = await state.plots.noise.png(`Noise density — ${state.canonical}`);
+    if (b) download(b, 'stagewright-noise.png');
+  });
+  $('png-splane').addEventListener('click', () => svgToPng($('splane'), 'stagewright-poles-zeros.png'));
+}
+
+function svgToPng(svg, name) {
+  const text = new XMLSerializer().serializeToString(svg);
+  const style = '<style>.ax{stroke:#39404d;stroke-width:1}.pole{stroke:#b3261e;stroke-width:2;fill:none}.zero{stroke:#1f5fa8;stroke-width:2;fill:none}.lbl{font:11px sans-serif;fill:#39404d}</style>';
+  const withStyle = text.replace(/>/, `>${style}`);
+  const url = URL.createObjectURL(new Blob([withStyle], { type: 'image/svg+xml' }));
+  const img = new Image();
+  img.onload = () => {
+    const scale = 2;
+    const c = document.createElement('canvas');
+    c.width = 320 * scale;
+    c.height = 200 * scale;
+    const ctx = c.getContext('2d');
+    ctx.fillStyle = '#fff';
+    ctx.fillRect(0, 0, c.width, c.height);
+    ctx.drawImage(img, 0, 0, c.width, c.height);
+    URL.revokeObjectURL(url);
+    c.toBlob((b) => b && download(b, name), 'image/png');
+  };
+  img.src = url;
+}
+
+async function main() {
+  document.body.dataset.state = 'starting';
+  status('Starting the engine…');
+  state.controls = new Controls($('pickers'), $('controls'), onEdit);
+  state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
+  state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
+  setupToolbar();
+  try {
+    const info = await state.engine.start();
+    document.body.dataset.engineMs = String(Math.round(info.initMs));
+    const proc = fragmentMap(currentHash()).get('proc');
+    await loadSchema(proc && /^[a-z0-9]{1,16}$/.test(proc) ? proc : 'd180').catch(() => loadSchema('d180'));
+  } catch (err) {
+    fatal(err.message);
+    return;
+  }
+  window.addEventListener('hashchange', () => {
+    if (currentHash() === state.canonical) return;
+    evaluate(currentHash(), { fromLink: true });
+  });
+  evaluate(currentHash(), { fromLink: true });
+}
+
+$('build-version').textContent = PAGE_VERSION;
+main();
+// for the browser tests: the split fragment helper of the page
+window.stagewrightPage = { splitFragment };

@@ -1,0 +1,53 @@
+// A small s-plane picture of the poles (×) and zeros (○). Both axes use a
+// signed logarithmic scale, sign(x)·log10(1 + |x|/f0), because poles of one
+// stage sit decades apart; f0 is a decade below the smallest root.
+import { formatSI } from './si.js';
+
+const NS = 'http://www.w3.org/2000/svg';
+
+function el(name, attrs, parent) {
+  const e = document.createElementNS(NS, name);
+  for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, String(v));
+  if (parent) parent.appendChild(e);
+  return e;
+}
+
+export function drawSPlane(svg, poles, zeros) {
+  while (svg.firstChild) svg.removeChild(svg.firstChild);
+  const W = 320;
+  const H = 200;
+  svg.setAttribute('viewBox', `0 0 ${W} ${H}`);
+  svg.setAttribute('role', 'img');
+  const title = el('title', {}, svg);
+  title.textContent = `s-plane: ${poles.length} pole(s) marked ×, ${zeros.length} zero(s) marked ○`;
+  const roots = [...poles, ...zeros].filter((r) => Number.isFinite(r.re) && Number.isFinite(r.im));
+  const mags = roots.flatMap((r) => [Math.abs(r.re), Math.abs(r.im)]).filter((v) => v > 0);
+  const f0 = mags.length ? Math.min(...mags) / 10 : 1;
+  const t = (v) => Math.sign(v) * Math.log10(1 + Math.abs(v) / f0);
+  const span = Math.max(1, ...roots.map((r) => Math.max(Math.abs(t(r.re)), Math.abs(t(r.im))))) * 1.12;
+  const cx = W / 2;
+  const cy = H / 2;
+  const sx = (v) => cx + (t(v) / span) * (W / 2 - 14);
+  const sy = (v) => cy - (t(v) / span) * (H / 2 - 14);
+  const g = el('g', { class: 'splane' }, svg);
+  el('line', { x1: 8, y1: cy, x2: W - 8, y2: cy, class: 'ax' }, g);
+  el('line', { x1: cx, y1: 8, x2: cx, y2: H - 8, class: 'ax' }, g);
+  const lab = (x, y, s, anchor) => {
+    const e = el('text', { x, y, class: 'lbl small', 'text-anchor': anchor }, g);
+    e.textContent = s;
+  };
+  lab(W - 10, cy + 18, 'σ/2π', 'end');
+  lab(cx + 6, 18, 'jω/2π', 'start');
+  lab(10, H - 8, '← stable (left half)', 'start');
+  for (const p of poles) {
+    if (!Number.isFinite(p.re) || !Number.isFinite(p.im)) continue;
+    const x = sx(p.re);
+    const y = sy(p.im);
+    el('path', { d: `M${x - 5},${y - 5} L${x + 5},${y + 5} M${x - 5},${y + 5} L${x + 5},${y - 5}`, class: 'pole' }, g);
+  }
+  for (const z of zeros) {
+    if (!Number.isFinite(z.re) || !Number.isFinite(z.im)) continue;
+    el('circle', { cx: sx(z.re), cy: sy(z.im), r: 5, class: 'zero' }, g);
+  }
+  lab(W - 10, H - 8, `signed log scale, f0 = ${formatSI(f0, 2, 'Hz')}`, 'end');
+}

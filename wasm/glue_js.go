@@ -1,0 +1,140 @@
+//go:build js && wasm
+
+package main
+
+import (
+	"github.com/hack-pad/safejs"
+)
+
+// buildVersion is set at link time (-X main.buildVersion=…) to the same
+// string the page bundle carries; the page refuses to run on a mismatch.
+var buildVersion = "dev"
+
+func main() {
+	if err := register(); err != nil {
+		// Nothing useful can run without the namespace; say so where a
+		// developer looks and stop.
+		println("stagewright: cannot register the bridge:", err.Error())
+		return
+	}
+	select {} // keep the Go runtime alive for callbacks
+}
+
+// register puts globalThis.stagewright in place and, when the host page or
+// worker defined globalThis.stagewrightReady, calls it.
+func register() error {
+	global := safejs.Global()
+	object, err := global.Get("Object")
+	if err != nil {
+		return err
+	}
+	ns, err := object.New()
+	if err != nil {
+		return err
+	}
+	if err := ns.Set("version", buildVersion); err != nil {
+		return err
+	}
+	jsonObj, err := global.Get("JSON")
+	if err != nil {
+		return err
+	}
+	for _, method := range []string{"schema", "evaluate", "evaluateMany"} {
+		method := method
+		fn, err := safejs.FuncOf(func(_ safejs.Value, args []safejs.Value) any {
+			return answer(jsonObj, method, args)
+		})
+		if err != nil {
+			return err
+		}
+		if err := ns.Set(method, fn.Value()); err != nil {
+			return err
+		}
+	}
+	if err := global.Set("stagewright", ns); err != nil {
+		return err
+	}
+	if ready, err := global.Get("stagewrightReady"); err == nil && ready.Type() == safejs.TypeFunction {
+		_, _ = ready.Invoke()
+	}
+	return nil
+}
+
+// answer runs one exported call. It recovers from panics in the conversion
+// as well as in the core, so JavaScript always gets an object back.
+func answer(jsonObj safejs.Value, method string, args []safejs.Value) (out any) {
+	defer func() {
+		if p := recover(); p != nil {
+			out = parse(jsonObj, Encode(Response{Error: &ErrorInfo{Code: CodeInternal, Message: method + ": internal error in the bridge"}}))
+		}
+	}()
+	converted := make([]Arg, len(args))
+	for i, a := range args {
+		converted[i] = toArg(a, 0)
+	}
+	resp := Handle(method, converted)
+	if debugStack != "" {
+		println("stagewright:", method, "recovered from a panic:\n"+debugStack)
+		debugStack = ""
+	}
+	return parse(jsonObj, Encode(resp))
+}
+
+// toArg converts a JavaScript value into the bridge's plain argument form.
+// Arrays are followed one level deep (evaluateMany takes an array of
+// strings); anything deeper is reported by kind only.
+func toArg(v safejs.Value, depth int) Arg {
+	switch v.Type() {
+	case safejs.TypeString:
+		s, err := v.String()
+		if err != nil {
+			return OtherArg("unreadable string")
+		}
+		return StringArg(s)
+	case safejs.TypeObject:
+		if depth > 0 {
+			return OtherArg("object")
+		}
+		array, err := safejs.Global().Get("Array")
+		if err != nil {
+			return OtherArg("object")
+		}
+		isArray, err := array.Call("isArray", v)
+		if err != nil {
+			return OtherArg("object")
+		}
+		if ok, _ := isArray.Bool(); !ok {
+			return OtherArg("object")
+		}
+		n, err := v.Length()
+		if err != nil {
+			return OtherArg("array")
+		}
+		if n > maxManyFragments {
+			// Do not copy a huge array just to refuse it.
+			return Arg{Kind: "array", Items: make([]Arg, n)}
+		}
+		items := make([]Arg, n)
+		for i := range items {
+			item, err := v.Index(i)
+			if err != nil {
+				items[i] = OtherArg("unreadable item")
+				continue
+			}
+			items[i] = toArg(item, depth+1)
+		}
+		return Arg{Kind: "array", Items: items}
+	default:
+		return OtherArg(v.Type().String())
+	}
+}
+
+// parse hands JSON text to JSON.parse and returns the object; JSON.parse of
+// one string is the fastest way to build a large object graph from Go.
+func parse(jsonObj safejs.Value, text []byte) any {
+	v, err := jsonObj.Call("parse", string(text))
+	if err != nil {
+		return "stagewright: JSON.parse failed: " + err.Error()
+	}
+	return v
+}
