@@ -63,16 +63,18 @@ func wrightOmega(y float64) float64 {
 		l := math.Log(y)
 		w = y - l + l/y
 	}
-	// Each step takes the relative error e to O(e⁴); the starts above are
-	// within 7 % everywhere, so three steps reach full precision with margin.
+	// Each step takes the relative error e ≈ r/(1 + w) to O(e⁴); the starts
+	// above are within 7 % everywhere. Once a step starts from |e| < 1e-5 the
+	// result is exact to rounding, so the loop stops without another log;
+	// it never needs more than three steps.
 	for i := 0; i < 3; i++ {
 		r := y - w - math.Log(w)
-		if r == 0 {
-			break
-		}
 		wp := 1 + w
 		z := 2 * wp * (wp + 2*r/3)
 		w *= 1 + r/wp*(z-r)/(z-2*r)
+		if math.Abs(r) < 1e-5*wp {
+			break
+		}
 	}
 	return w
 }

@@ -204,7 +204,8 @@ type biasPoint struct {
 	qf, qr     float64 // normalized charges at the source and drain ends
 	ispec      float64 // A
 	mob        float64 // D, mobility and velocity-saturation divisor
-	clm        float64 // M, channel-length modulation factor
+	inorm      float64 // ID/I_spec
+	gmNorm     float64 // GM/I_spec, 1/V
 
 	id           float64 // A, normalized drain current
 	gm, gmb, gds float64 // S
@@ -237,6 +238,11 @@ func clampedVoltage(v float64) (float64, float64) {
 // derivative: x + w·ln(1 + e^(−x/w)) for x ≥ 0, w·ln(1 + e^(x/w)) below.
 func softplus(x float64) (s, ds float64) {
 	t := x / smoothWidth
+	if t > 37 {
+		// e^(−t) < 1e-16: the correction is below an ulp of x and the slope
+		// rounds to 1.
+		return x, 1
+	}
 	if t >= 0 {
 		e := math.Exp(-t)
 		return x + smoothWidth*math.Log1p(e), 1 / (1 + e)
@@ -286,7 +292,6 @@ func (d *Device) bias(vd, vg, vs, vb float64) biasPoint {
 	bf, br := af*(2*qf+1), ar*(2*qr+1)
 
 	ispec := n * d.specPerN
-	dIspec := dn * d.specPerN // ∂I_spec/∂VP
 
 	f := (qf - qr) * (qf + qr + 1) // i_f − i_r without cancellation
 	fP, fS, fD := (bf-br)/ut, -bf/ut, br/ut
@@ -309,19 +314,24 @@ func (d *Device) bias(vd, vg, vs, vb float64) biasPoint {
 	clm := 1 + d.lambda*math.Abs(vds)
 	cD := d.lambda * sgn
 
+	// Derivatives of the normalized current ID/I_spec first: they stay normal
+	// doubles deep in cut-off where ID itself nears the underflow limit, so
+	// gm/ID and the noise factor keep full precision there.
 	k := clm / mob
-	id := ispec * f * k
-	gP := (dIspec*f+ispec*fP)*k - id*mP/mob
-	gS := ispec*(fS*k-f*cD/mob) - id*mS/mob
-	gD := ispec*(fD*k+f*cD/mob) - id*mD/mob
+	inorm := f * k
+	gPn := (dn/n*f+fP)*k - inorm*mP/mob
+	gSn := (fS*k - f*cD/mob) - inorm*mS/mob
+	gDn := (fD*k + f*cD/mob) - inorm*mD/mob
 
-	gm := gP * dvp * kG
-	gs := gS * kS
-	gds := gD * kD
+	gmn := gPn * dvp * kG
+	gm := ispec * gmn
+	gs := ispec * gSn * kS
+	gds := ispec * gDn * kD
 	return biasPoint{
 		vg: VG, vs: VS, vd: VD,
 		vp: vp, n: n, qf: qf, qr: qr,
-		ispec: ispec, mob: mob, clm: clm,
-		id: id, gm: gm, gmb: -(gm + gs + gds), gds: gds,
+		ispec: ispec, mob: mob,
+		inorm: inorm, gmNorm: gmn,
+		id: ispec * inorm, gm: gm, gmb: -(gm + gs + gds), gds: gds,
 	}
 }

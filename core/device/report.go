@@ -69,7 +69,7 @@ type Report struct {
 	Inversion          Inversion
 
 	GM, GMB, GDS float64 // S, as in Eval
-	RO           float64 // Ω, 1/GDS; +Inf when GDS = 0 (callers must handle it)
+	RO           float64 // Ω, 1/GDS; +Inf when GDS is 0 or below ~5.6e-309 S (callers must handle it)
 	GmID         float64 // 1/V (S/A), GM/|ID|; 0 when ID = 0
 	IC           float64 // |ID|/I_spec, the inversion coefficient in saturation
 	IF           float64 // i = q² + q at the more inverted channel end; equals IC in saturation without θ, λ; decides Region and Inversion
@@ -81,7 +81,7 @@ type Report struct {
 	FT            float64 // Hz, GM/(2π·(CGS + CGD + CGB)); 0 when the sum is 0
 
 	SID         float64 // A²/Hz, channel thermal-noise current PSD
-	GammaNoise  float64 // SID/(4kT·n·GM): ½ in weak, ⅔ in strong inversion (saturation); 0 when GM = 0
+	GammaNoise  float64 // SID/(4kT·n·GM): ½ in weak, ⅔ in strong inversion (saturation); 0 when GM is 0 or too small for a finite ratio
 	FlickerGate float64 // V², S_vg(f) = FlickerGate/f = KF/(Cox·W·L·f)
 
 	Ispec float64 // A, specific current 2·n·µ·Cox·(W/L)·U_T²
@@ -90,7 +90,7 @@ type Report struct {
 
 // Report evaluates the full operating point at absolute terminal voltages
 // vd, vg, vs, vb (V). Inputs are read as in Current. It does not allocate and
-// every field is finite except RO, which is +Inf when GDS is exactly 0.
+// every field is finite except RO, which is +Inf when 1/GDS overflows.
 func (d *Device) Report(vd, vg, vs, vb float64) Report {
 	b := d.bias(vd, vg, vs, vb)
 	p := float64(d.pol)
@@ -131,10 +131,10 @@ func (d *Device) Report(vd, vg, vs, vb float64) Report {
 
 	r.GM, r.GMB, r.GDS = b.gm, b.gmb, b.gds
 	r.RO = 1 / b.gds
-	if b.id != 0 {
-		r.GmID = b.gm / math.Abs(b.id)
+	if b.inorm != 0 {
+		r.GmID = b.gmNorm / math.Abs(b.inorm)
 	}
-	r.IC = math.Abs(b.id) / b.ispec
+	r.IC = math.Abs(b.inorm)
 	r.N = b.n
 	r.QF, r.QR = b.qf, b.qr
 
@@ -144,8 +144,11 @@ func (d *Device) Report(vd, vg, vs, vb float64) Report {
 	qf, qr := b.qf, b.qr
 	qn := ((2.0/3)*(qf*qf+qf*qr+qr*qr) + 0.5*(qf+qr)) / (qf + qr + 1)
 	r.SID = 4 * Charge * b.ispec * qn / b.mob
-	if b.gm > 0 {
-		r.GammaNoise = r.SID / (4 * Boltzmann * d.temp * b.n * b.gm)
+	// SID/(4kT·n·GM) in normalized form, which does not underflow.
+	if b.gmNorm > 0 {
+		if g := qn / (b.mob * b.n * ut * b.gmNorm); g <= math.MaxFloat64 {
+			r.GammaNoise = g
+		}
 	}
 	r.FlickerGate = d.flicker
 
