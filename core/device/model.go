@@ -104,18 +104,17 @@ func New(pol Polarity, prm Params, tnom float64, w, l, temp float64) (Device, er
 	if err := prm.Validate(); err != nil {
 		return Device{}, err
 	}
-	args := []RangeError{
+	for _, a := range [...]RangeError{
 		{Name: "W", Value: w, Min: minSize, Max: maxSize, Unit: "m"},
 		{Name: "L", Value: l, Min: minSize, Max: maxSize, Unit: "m"},
 		{Name: "temperature", Value: temp, Min: minTemp, Max: maxTemp, Unit: "K"},
 		{Name: "TNom", Value: tnom, Min: minTemp, Max: maxTemp, Unit: "K"},
-	}
-	for i := range args {
-		if a := &args[i]; !(a.Value >= a.Min && a.Value <= a.Max) {
-			return Device{}, a
+	} {
+		if !(a.Value >= a.Min && a.Value <= a.Max) {
+			e := a // only a failure allocates
+			return Device{}, &e
 		}
 	}
-
 	d := Device{pol: pol, prm: prm, w: w, l: l, temp: temp}
 	d.ut = ThermalVoltage(temp)
 	d.vt0 = prm.VT0 - prm.TCV*(temp-tnom)

@@ -423,7 +423,8 @@ func FuzzCurrent(f *testing.F) {
 	})
 }
 
-// TestCurrentDoesNotAllocate pins the hot path at zero allocations.
+// TestCurrentDoesNotAllocate pins the hot path, and New, at zero
+// allocations.
 func TestCurrentDoesNotAllocate(t *testing.T) {
 	d, _ := builtinDevice(t, "d65", PMOS, 3e-6, 0.1e-6, 300)
 	var sink Eval
@@ -434,6 +435,10 @@ func TestCurrentDoesNotAllocate(t *testing.T) {
 	var rs Report
 	if n := testing.AllocsPerRun(200, func() { v += 1e-3; rs = d.Report(0.2, v, 1.2, 1.2) }); n != 0 {
 		t.Errorf("Report allocates %g times per call", n)
+	}
+	pr, _ := Builtin("d180")
+	if n := testing.AllocsPerRun(50, func() { _, _ = New(NMOS, pr.N, pr.TNom, 1e-6, 1e-6, 300+v) }); n != 0 {
+		t.Errorf("New allocates %g times per call", n)
 	}
 	_, _ = sink, rs
 }

@@ -2,7 +2,6 @@ package device
 
 import (
 	"fmt"
-	"math"
 	"sort"
 	"strconv"
 )
@@ -90,7 +89,7 @@ func (e *RangeError) Error() string {
 // paramRange is one row of the table Validate checks.
 type paramRange struct {
 	name     string
-	get      func(*Params) float64
+	get      func(Params) float64
 	min, max float64
 	unit     string
 	zeroOK   bool // 0 means "off" or "derive it", allowed besides [min, max]
@@ -99,27 +98,27 @@ type paramRange struct {
 // paramRanges are wide enough for any plausible bulk CMOS process and narrow
 // enough that every derived quantity stays finite.
 var paramRanges = []paramRange{
-	{"VT0", func(p *Params) float64 { return p.VT0 }, -1, 2, "V", false},
-	{"U0", func(p *Params) float64 { return p.U0 }, 1e-4, 1, "m²/(V·s)", false},
-	{"Tox", func(p *Params) float64 { return p.Tox }, 0.5e-9, 1e-6, "m", false},
-	{"Gamma", func(p *Params) float64 { return p.Gamma }, 0, 5, "√V", false},
-	{"Phi", func(p *Params) float64 { return p.Phi }, 0.2, 1.5, "V", true},
-	{"NSub", func(p *Params) float64 { return p.NSub }, 1e20, 1e26, "m⁻³", true},
-	{"NFixed", func(p *Params) float64 { return p.NFixed }, 1, 5, "", true},
-	{"LambdaL", func(p *Params) float64 { return p.LambdaL }, 0, 1e-5, "m/V", false},
-	{"Theta", func(p *Params) float64 { return p.Theta }, 0, 10, "1/V", false},
-	{"ECrit", func(p *Params) float64 { return p.ECrit }, 1e5, 1e10, "V/m", true},
-	{"TCV", func(p *Params) float64 { return p.TCV }, -0.01, 0.01, "V/K", false},
-	{"BEX", func(p *Params) float64 { return p.BEX }, -4, 2, "", false},
-	{"CGSO", func(p *Params) float64 { return p.CGSO }, 0, 1e-8, "F/m", false},
-	{"CGDO", func(p *Params) float64 { return p.CGDO }, 0, 1e-8, "F/m", false},
-	{"CJ", func(p *Params) float64 { return p.CJ }, 0, 0.1, "F/m²", false},
-	{"CJSW", func(p *Params) float64 { return p.CJSW }, 0, 1e-8, "F/m", false},
-	{"MJ", func(p *Params) float64 { return p.MJ }, 0, 1, "", false},
-	{"MJSW", func(p *Params) float64 { return p.MJSW }, 0, 1, "", false},
-	{"PB", func(p *Params) float64 { return p.PB }, 0.1, 2, "V", false},
-	{"LDiff", func(p *Params) float64 { return p.LDiff }, 0, 1e-4, "m", false},
-	{"KF", func(p *Params) float64 { return p.KF }, 0, 1e-20, "V²·F", false},
+	{"VT0", func(p Params) float64 { return p.VT0 }, -1, 2, "V", false},
+	{"U0", func(p Params) float64 { return p.U0 }, 1e-4, 1, "m²/(V·s)", false},
+	{"Tox", func(p Params) float64 { return p.Tox }, 0.5e-9, 1e-6, "m", false},
+	{"Gamma", func(p Params) float64 { return p.Gamma }, 0, 5, "√V", false},
+	{"Phi", func(p Params) float64 { return p.Phi }, 0.2, 1.5, "V", true},
+	{"NSub", func(p Params) float64 { return p.NSub }, 1e20, 1e26, "m⁻³", true},
+	{"NFixed", func(p Params) float64 { return p.NFixed }, 1, 5, "", true},
+	{"LambdaL", func(p Params) float64 { return p.LambdaL }, 0, 1e-5, "m/V", false},
+	{"Theta", func(p Params) float64 { return p.Theta }, 0, 10, "1/V", false},
+	{"ECrit", func(p Params) float64 { return p.ECrit }, 1e5, 1e10, "V/m", true},
+	{"TCV", func(p Params) float64 { return p.TCV }, -0.01, 0.01, "V/K", false},
+	{"BEX", func(p Params) float64 { return p.BEX }, -4, 2, "", false},
+	{"CGSO", func(p Params) float64 { return p.CGSO }, 0, 1e-8, "F/m", false},
+	{"CGDO", func(p Params) float64 { return p.CGDO }, 0, 1e-8, "F/m", false},
+	{"CJ", func(p Params) float64 { return p.CJ }, 0, 0.1, "F/m²", false},
+	{"CJSW", func(p Params) float64 { return p.CJSW }, 0, 1e-8, "F/m", false},
+	{"MJ", func(p Params) float64 { return p.MJ }, 0, 1, "", false},
+	{"MJSW", func(p Params) float64 { return p.MJSW }, 0, 1, "", false},
+	{"PB", func(p Params) float64 { return p.PB }, 0.1, 2, "V", false},
+	{"LDiff", func(p Params) float64 { return p.LDiff }, 0, 1e-4, "m", false},
+	{"KF", func(p Params) float64 { return p.KF }, 0, 1e-20, "V²·F", false},
 }
 
 // Validate checks every field against its accepted range and returns a
@@ -127,7 +126,7 @@ var paramRanges = []paramRange{
 // Phi == 0 requires NSub in range, since 2φF is then derived from it.
 func (p Params) Validate() error {
 	for _, r := range paramRanges {
-		v := r.get(&p)
+		v := r.get(p)
 		if r.zeroOK && v == 0 {
 			continue
 		}
@@ -173,18 +172,17 @@ func (pr Process) Params(p Polarity) Params {
 // Validate checks the supply, geometry limits, nominal temperature and both
 // parameter sets. Errors name the process and the polarity.
 func (pr Process) Validate() error {
-	checks := []RangeError{
+	for _, c := range [...]RangeError{
 		{Name: "VDD", Value: pr.VDD, Min: 0.1, Max: 100, Unit: "V"},
 		{Name: "LMin", Value: pr.LMin, Min: minSize, Max: maxSize, Unit: "m"},
 		{Name: "LMax", Value: pr.LMax, Min: pr.LMin, Max: maxSize, Unit: "m"},
 		{Name: "WMin", Value: pr.WMin, Min: minSize, Max: maxSize, Unit: "m"},
 		{Name: "WMax", Value: pr.WMax, Min: pr.WMin, Max: maxSize, Unit: "m"},
 		{Name: "TNom", Value: pr.TNom, Min: minTemp, Max: maxTemp, Unit: "K"},
-	}
-	for i := range checks {
-		c := &checks[i]
+	} {
 		if !(c.Value >= c.Min && c.Value <= c.Max) {
-			return fmt.Errorf("device: process %q: %w", pr.Name, c)
+			e := c
+			return fmt.Errorf("device: process %q: %w", pr.Name, &e)
 		}
 	}
 	if err := pr.N.Validate(); err != nil {
@@ -307,6 +305,3 @@ func BuiltinNames() []string {
 	sort.Strings(names)
 	return names
 }
-
-// finite reports whether v is neither NaN nor ±Inf.
-func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
