@@ -1,6 +1,11 @@
 package circuit
 
-import "stagewright/core/dense"
+import (
+	"math"
+	"math/cmplx"
+
+	"stagewright/core/dense"
+)
 
 // Poles returns the natural frequencies of the network, s in rad/s: the
 // finite roots of det(G + s·C) = 0.
@@ -30,5 +35,18 @@ func (nw *Network) Zeros() ([]complex128, error) {
 		c[i*m+n] = -nw.CSig[i]
 	}
 	g[n*m+nw.Out] = 1
-	return dense.PencilRoots(m, g, c)
+	z, err := dense.PencilRoots(m, g, c)
+	// A zero beyond 1 PHz is a zero at infinity that rounding moved into
+	// view (the bordered pencil has more infinite roots than the plain one).
+	kept := z[:0]
+	for _, s := range z {
+		if cmplx.Abs(s) <= maxZero {
+			kept = append(kept, s)
+		}
+	}
+	return kept, err
 }
+
+// maxZero (rad/s) is 2π·1 PHz, far above any frequency a transistor stage
+// responds to.
+const maxZero = 2 * math.Pi * 1e15

@@ -1,6 +1,10 @@
 package design
 
-import "stagewright/core/device"
+import (
+	"math"
+
+	"stagewright/core/device"
+)
 
 // defaultProcess is the process of a fragment that names none.
 const defaultProcess = "d180"
@@ -15,14 +19,36 @@ type processDefaults struct {
 	VOut   float64 // V, output target with transistor loads
 	LoadVB float64 // V, |VGS| of M2
 	RD     float64 // Ω, drain resistor
+	RSF    float64 // Ω, bias resistor of a source follower with load r
 }
 
 // builtinDefaults holds the defaults for each built-in demo process. They
 // are starting points chosen for these invented processes, not data of any
 // real one.
 var builtinDefaults = map[string]processDefaults{
-	"d180": {L: 0.5e-6, LoadL: 1e-6, Vin: 0.7, VG: 1.2, VOut: 0.9, LoadVB: 0.7, RD: 10e3},
-	"d65":  {L: 0.2e-6, LoadL: 0.5e-6, Vin: 0.5, VG: 0.8, VOut: 0.6, LoadVB: 0.5, RD: 5e3},
+	"d180": {L: 0.5e-6, LoadL: 1e-6, Vin: 0.7, VG: 1.2, VOut: 0.9, LoadVB: 0.7, RD: 10e3, RSF: 5e3},
+	"d65":  {L: 0.2e-6, LoadL: 0.5e-6, Vin: 0.5, VG: 0.8, VOut: 0.6, LoadVB: 0.5, RD: 5e3, RSF: 3e3},
+}
+
+// inputLevels are the default input and cg gate levels (V) of each
+// process by stage and polarity of M1: a follower's gate sits high, a
+// common-gate input low, and the PMOS stages mirror the NMOS ones with room
+// for the larger |VGS| of the slower device.
+var inputLevels = map[string]map[string][2]float64{ // "stage/pol" → {vin, vg}
+	"d180": {"cs/n": {0.7, 0.9}, "cs/p": {1.0, 0.9}, "sf/n": {1.3, 0.9}, "sf/p": {0.5, 0.9}, "cg/n": {0.3, 1.1}, "cg/p": {1.5, 0.7}},
+	"d65":  {"cs/n": {0.5, 0.65}, "cs/p": {0.65, 0.65}, "sf/n": {0.9, 0.65}, "sf/p": {0.3, 0.65}, "cg/n": {0.2, 0.75}, "cg/p": {1.0, 0.4}},
+}
+
+// inputDefaults returns the default vin and vg for d's stage and polarity.
+func inputDefaults(pr *device.Process, d *Design) (vin, vg float64) {
+	pd := defaultsOf(pr)
+	vin, vg = pd.Vin, pd.VG
+	if t, ok := inputLevels[pr.Name]; ok {
+		if v, ok := t[string(d.Stage)+"/"+d.Pol]; ok {
+			vin, vg = v[0], v[1]
+		}
+	}
+	return math.Min(vin, d.VDD), math.Min(vg, d.VDD)
 }
 
 // defaultsOf returns the defaults for pr; a process without an entry gets

@@ -254,3 +254,34 @@ func TestReadmeKeyTable(t *testing.T) {
 		t.Error("README.md's key table is stale: regenerate it with `go run ./core/cmd/stagewright keys`")
 	}
 }
+
+// Every stage, polarity and load works from its defaults alone, on both
+// demo processes: a user who only picks a topology sees a working design.
+func TestDefaultsWork(t *testing.T) {
+	for _, proc := range []string{"d180", "d65"} {
+		for _, st := range []string{"cs", "cg", "sf"} {
+			for _, pol := range []string{"n", "p"} {
+				for _, load := range []string{"r", "active", "diode"} {
+					if st == "sf" && load == "diode" {
+						continue
+					}
+					for _, bias := range []string{"id", "vin", "gmid"} {
+						frag := "proc=" + proc + "&stage=" + st + "&pol=" + pol + "&load=" + load + "&bias=" + bias
+						r := Evaluate(mustDecode(t, frag))
+						if !r.OK {
+							if bias == "vin" { // a given input level need not suit every load
+								continue
+							}
+							t.Errorf("%s: %s", frag, r.Error.Message)
+							continue
+						}
+						checkFinite(t, frag, &r)
+						if bias == "id" && r.OP.Region != "saturation" {
+							t.Errorf("%s: default design is in %s", frag, r.OP.Region)
+						}
+					}
+				}
+			}
+		}
+	}
+}

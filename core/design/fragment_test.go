@@ -76,7 +76,7 @@ func TestDefaults(t *testing.T) {
 		{"d180", "vdd", func(d Design) float64 { return d.VDD }, 1.8},
 		{"d180", "l", func(d Design) float64 { return d.L }, 0.5e-6},
 		{"d180", "vin", func(d Design) float64 { return d.Vin }, 0.7},
-		{"d180", "vg", func(d Design) float64 { return d.VG }, 1.2},
+		{"d180", "vg", func(d Design) float64 { return d.VG }, 0.9},
 		{"d180", "vout", func(d Design) float64 { return d.VOut }, 0.9},
 		{"d180", "rd", func(d Design) float64 { return d.RD }, 10e3},
 		{"d180", "ll", func(d Design) float64 { return d.LoadL }, 1e-6},
@@ -84,7 +84,7 @@ func TestDefaults(t *testing.T) {
 		{"d65", "vdd", func(d Design) float64 { return d.VDD }, 1.2},
 		{"d65", "l", func(d Design) float64 { return d.L }, 0.2e-6},
 		{"d65", "vin", func(d Design) float64 { return d.Vin }, 0.5},
-		{"d65", "vg", func(d Design) float64 { return d.VG }, 0.8},
+		{"d65", "vg", func(d Design) float64 { return d.VG }, 0.65},
 		{"d65", "vout", func(d Design) float64 { return d.VOut }, 0.6},
 		{"d65", "rd", func(d Design) float64 { return d.RD }, 5e3},
 		{"d65", "ll", func(d Design) float64 { return d.LoadL }, 0.5e-6},
@@ -121,8 +121,8 @@ func TestDefaults(t *testing.T) {
 	}
 	// Stage- and supply-dependent defaults (spec: rs is 10k for sf; the DC
 	// levels stay at or below vdd).
-	if d, _ := Decode("stage=sf"); d.RS != 10e3 {
-		t.Errorf("sf default rs = %g, want 10k", d.RS)
+	if d, _ := Decode("stage=sf"); d.RS != 5e3 {
+		t.Errorf("sf default rs = %g, want 5k", d.RS)
 	}
 	if d, _ := Decode("vdd=0.5"); d.Vin != 0.5 || d.VG != 0.5 || d.VOut != 0.5 || d.LoadVB != 0.5 {
 		t.Errorf("vdd=0.5: DC level defaults %g %g %g %g, want each clamped to 0.5", d.Vin, d.VG, d.VOut, d.LoadVB)
@@ -235,14 +235,14 @@ func TestDecodeProblems(t *testing.T) {
 		{"wrong process", "proc=d90", "proc", "d90", "process must be one of d180, d65", "l", "0.5e-6"},
 		{"version", "v=2", "v", "2", "this build reads fragment version 1", "", ""},
 		{"diode for sf", "stage=sf&load=diode", "load", "diode", "a source follower cannot take a diode load", "", ""},
-		{"sf needs rs", "stage=sf&rs=0", "rs", "0", "source resistor must be above 0 and at most 1G (Ω)", "rs", "10e3"},
+		{"sf needs rs", "stage=sf&rs=0", "rs", "0", "source resistor must be above 0 and at most 1G (Ω)", "rs", "5e3"},
 		{"fmin = fmax", "fmin=1k&fmax=1k", "fmax", "1k", "sweep stop must be above fmin = 1k and at most 1e12 (Hz)", "fmax", "100e9"},
 		{"fmin at the top", "fmin=1e12", "fmin", "1e12", "sweep start must be at least 1m and below 1e12 (Hz)", "fmin", "1"},
 		{"nlo >= nhi", "nlo=1M&nhi=1k", "nhi", "1k", "noise band stop must be above nlo = 1M and at most fmax = 100G (Hz)", "nhi", "100e6"},
 		{"nlo below fmin", "fmin=10&nlo=1", "nlo", "1", "noise band start must be at least fmin = 10 and below fmax = 100G (Hz)", "nlo", "10"},
 		{"vin above vdd", "vdd=1&vin=1.2", "vin", "1.2", "input DC level must be between 0 and vdd = 1 (V)", "vin", "0.7"},
 		{"vin above vdd, reversed", "vin=1.2&vdd=1", "vin", "1.2", "between 0 and vdd = 1 (V)", "vin", "0.7"},
-		{"vg above vdd", "vdd=1&vg=1.1", "vg", "1.1", "gate DC level must be between 0 and vdd = 1 (V)", "vg", "1"},
+		{"vg above vdd", "vdd=1&vg=1.1", "vg", "1.1", "gate DC level must be between 0 and vdd = 1 (V)", "vg", "0.9"},
 		{"ppd zero", "ppd=0", "ppd", "0", "points per decade must be a whole number between 1 and 200", "ppd", "40"},
 		{"ppd fraction", "ppd=2.5", "ppd", "2.5", "whole number", "ppd", "40"},
 		{"bad key escape", "%zz=1", "%zz", "1", `the key has a bad percent escape (invalid escape "%zz")`, "", ""},
@@ -289,8 +289,8 @@ func TestDecodeProblems(t *testing.T) {
 func TestDecodeWordFallbacks(t *testing.T) {
 	// A bad word falls back to the default, and keys after it see the default.
 	d, _ := Decode("stage=sf&load=diode")
-	if d.Stage != SourceFollower || d.Load != LoadResistor || d.RS != 10e3 {
-		t.Errorf("sf with diode: stage %q load %q rs %g, want sf, r and the sf default rs 10k", d.Stage, d.Load, d.RS)
+	if d.Stage != SourceFollower || d.Load != LoadResistor || d.RS != 5e3 {
+		t.Errorf("sf with diode: stage %q load %q rs %g, want sf, r and the sf default rs 5k", d.Stage, d.Load, d.RS)
 	}
 	d, _ = Decode("proc=d90&l=65n")
 	if d.Process != "d180" {
@@ -371,10 +371,10 @@ func TestEncode(t *testing.T) {
 	}{
 		{"bias=gmid", []string{"&gmid=10&", "&id=100u&"}, []string{"&w=", "&vin="}},
 		{"bias=vin", []string{"&vin=700m&", "&w=10u&"}, []string{"&id=", "&gmid="}},
-		{"stage=cg", []string{"&vg=1.2&", "&rd=10k&"}, []string{"&rs="}},
+		{"stage=cg", []string{"&vg=1.1&", "&rd=10k&"}, []string{"&rs="}},
 		{"load=active&bias=vin", []string{"&lw=10u&", "&ll=1u&", "&vbl=700m&"}, []string{"&rd=", "&vout="}},
 		{"load=diode", []string{"&lw=10u&", "&ll=1u&", "&vout=900m&"}, []string{"&rd=", "&vbl="}},
-		{"stage=sf", []string{"&rs=10k&"}, []string{"&rd="}},
+		{"stage=sf", []string{"&rs=5k&"}, []string{"&rd="}},
 		{"stage=sf&load=active", []string{"&lw="}, []string{"&rs=", "&rd="}},
 		// An irrelevant key is written when it is not at its default.
 		{"load=active&rd=22k", []string{"&rd=22k&"}, nil},
@@ -560,8 +560,8 @@ func TestSchema(t *testing.T) {
 			t.Errorf("p.vt0 default = %g, want the process value %g", vt0.Default, pr.P.VT0)
 		}
 		rs := schema[keyIndex["rs"]]
-		if rs.StageDefaults["sf"] != 10e3 || !slices.Equal(rs.Stages, []string{"cs", "sf"}) || len(rs.Loads) != 0 || len(rs.When) != 2 {
-			t.Errorf("rs schema = %+v, want sf default 10k, stages cs sf, any load, two conditions", rs)
+		if rs.StageDefaults["sf"] != defaultsOf(&pr).RSF || !slices.Equal(rs.Stages, []string{"cs", "sf"}) || len(rs.Loads) != 0 || len(rs.When) != 2 {
+			t.Errorf("rs schema = %+v, want the process's sf default, stages cs sf, any load, two conditions", rs)
 		}
 		vin := schema[keyIndex["vin"]]
 		if vin.MaxFrom != "vdd" || vin.Max != d.VDD {
@@ -611,7 +611,7 @@ func TestKeyTableMarkdown(t *testing.T) {
 			t.Errorf("row %q has %d cell bars, want 5", line, n)
 		}
 	}
-	for _, s := range []string{"220n … 1m m", "0 … vdd V", "cs, cg, sf", "0 (sf: 10k)", "1 … 1G Ω, or inf"} {
+	for _, s := range []string{"220n … 1m m", "0 … vdd V", "cs, cg, sf", "0 (sf: 5k)", "1 … 1G Ω, or inf"} {
 		if !strings.Contains(md, s) {
 			t.Errorf("the key table lacks %q", s)
 		}

@@ -245,7 +245,7 @@ var keyTable = [...]keyDef{
 		doc:  "Input DC level, V: the gate of a cs or sf stage, the signal source for a cg stage (bias vin).",
 		when: []Condition{{Biases: []string{string(BiasVin)}}},
 		span: upToVDD,
-		def:  func(pr *device.Process, d *Design) float64 { return math.Min(defaultsOf(pr).Vin, d.VDD) },
+		def:  func(pr *device.Process, d *Design) float64 { v, _ := inputDefaults(pr, d); return v },
 		get:  func(d *Design) float64 { return d.Vin },
 		set:  func(d *Design, v float64) { d.Vin = v },
 	},
@@ -254,7 +254,7 @@ var keyTable = [...]keyDef{
 		doc:  "Gate DC level of a common-gate stage, V.",
 		when: []Condition{{Stages: []string{string(CommonGate)}}},
 		span: upToVDD,
-		def:  func(pr *device.Process, d *Design) float64 { return math.Min(defaultsOf(pr).VG, d.VDD) },
+		def:  func(pr *device.Process, d *Design) float64 { _, v := inputDefaults(pr, d); return v },
 		get:  func(d *Design) float64 { return d.VG },
 		set:  func(d *Design, v float64) { d.VG = v },
 	},
@@ -310,9 +310,9 @@ var keyTable = [...]keyDef{
 			}
 			return span{lo: 0, hi: 1e9}
 		},
-		def: func(_ *device.Process, d *Design) float64 {
+		def: func(pr *device.Process, d *Design) float64 {
 			if d.Stage == SourceFollower {
-				return 10e3
+				return defaultsOf(pr).RSF
 			}
 			return 0
 		},
