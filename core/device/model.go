@@ -64,11 +64,8 @@ type Device struct {
 
 	ut      float64 // V, thermal voltage
 	vt0     float64 // V, VT0 at temp
-	mu      float64 // m²/(V·s), mobility at temp
 	phi     float64 // V, 2φF at temp
 	sqrtPhi float64
-	gamma   float64
-	nFixed  float64 // constant slope factor, 0 = derived from gamma
 	vgShift float64 // V, VG' = VG + vgShift
 
 	cox      float64 // F/m²
@@ -118,7 +115,7 @@ func New(pol Polarity, prm Params, tnom float64, w, l, temp float64) (Device, er
 	d := Device{pol: pol, prm: prm, w: w, l: l, temp: temp}
 	d.ut = ThermalVoltage(temp)
 	d.vt0 = prm.VT0 - prm.TCV*(temp-tnom)
-	d.mu = prm.U0 * math.Pow(temp/tnom, prm.BEX)
+	mu := prm.U0 * math.Pow(temp/tnom, prm.BEX)
 	if prm.Phi > 0 {
 		r := temp / tnom
 		d.phi = prm.Phi*r - 3*d.ut*math.Log(r) + BandGap(temp) - BandGap(tnom)*r
@@ -130,12 +127,10 @@ func New(pol Polarity, prm Params, tnom float64, w, l, temp float64) (Device, er
 			Note: fmt.Sprintf("(derived at T = %g K from Phi = %g V, NSub = %g m⁻³)", temp, prm.Phi, prm.NSub)}
 	}
 	d.sqrtPhi = math.Sqrt(d.phi)
-	d.gamma = prm.Gamma
-	d.nFixed = prm.NFixed
-	d.vgShift = -d.vt0 + d.phi + d.gamma*d.sqrtPhi
+	d.vgShift = -d.vt0 + d.phi + prm.Gamma*d.sqrtPhi
 
 	d.cox = epsOx * Eps0 / prm.Tox
-	d.kp = d.mu * d.cox
+	d.kp = mu * d.cox
 	d.specPerN = 2 * d.kp * (w / l) * d.ut * d.ut
 	d.lambda = prm.LambdaL / l
 	d.theta = prm.Theta
@@ -170,10 +165,10 @@ func (d *Device) Temperature() float64 { return d.temp }
 // pinch-off voltage equals the source voltage. With a fixed slope factor it is
 // VT0(T) + (n − 1)·VSB. A forward bias beyond −2φF is held at −2φF.
 func (d *Device) Threshold(vsb float64) float64 {
-	if d.nFixed > 0 {
-		return d.vt0 + (d.nFixed-1)*clampVoltage(vsb)
+	if n := d.prm.NFixed; n > 0 {
+		return d.vt0 + (n-1)*clampVoltage(vsb)
 	}
-	return d.vt0 + d.gamma*(math.Sqrt(math.Max(d.phi+clampVoltage(vsb), 0))-d.sqrtPhi)
+	return d.vt0 + d.prm.Gamma*(math.Sqrt(math.Max(d.phi+clampVoltage(vsb), 0))-d.sqrtPhi)
 }
 
 // Eval is the drain current and its derivatives at one bias. ID is the
@@ -258,12 +253,12 @@ func softplus(x float64) (s, ds float64) {
 // n = 1 + γ/(2·√(2φF + VP + 4U_T)). With a fixed slope factor,
 // VP = (VG − VT0)/n.
 func (d *Device) pinchOff(vg float64) (vp, dvp, n, dn float64) {
-	if d.nFixed > 0 {
-		return (vg - d.vt0) / d.nFixed, 1 / d.nFixed, d.nFixed, 0
+	if nf := d.prm.NFixed; nf > 0 {
+		return (vg - d.vt0) / nf, 1 / nf, nf, 0
 	}
 	s, ds := softplus(vg + d.vgShift)
 	s = math.Max(s, 1e-300) // softplus underflows only far below threshold
-	g := d.gamma
+	g := d.prm.Gamma
 	r := math.Sqrt(s + g*g/4)
 	sp := s / (r + g/2) // = √(2φF + VP), free of the cancellation in r − γ/2
 	vp = s - d.phi - g*sp

@@ -30,10 +30,10 @@ func (d *Device) SquareLawAt(id, vsb float64) SquareLaw {
 		RO:  1 / (d.lambda * id),
 	}
 	s.VDsat = s.Vov
-	if d.nFixed > 0 {
-		s.GMB = (d.nFixed - 1) * s.GM
+	if n := d.prm.NFixed; n > 0 {
+		s.GMB = (n - 1) * s.GM
 	} else {
-		s.GMB = s.GM * d.gamma / (2 * math.Sqrt(math.Max(d.phi+clampVoltage(vsb), d.ut)))
+		s.GMB = s.GM * d.prm.Gamma / (2 * math.Sqrt(math.Max(d.phi+clampVoltage(vsb), d.ut)))
 	}
 	return s
 }
