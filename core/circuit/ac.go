@@ -59,6 +59,7 @@ func LogSweep(f []float64, fmin, fmax float64, ppd int) []float64 {
 // Analyzer sweeps a network. Its zero value is ready; it keeps its
 // workspace between calls.
 type Analyzer struct {
+	general      bool // always use the LU path (tests)
 	y, yin, yout []complex128
 	b, z, x      []complex128
 	lu, luIn     dense.CLU
@@ -84,6 +85,16 @@ func (a *Analyzer) size(n int) {
 // resistance excluded), and the output and input-referred noise densities
 // from every noise source through the adjoint network.
 func (a *Analyzer) Sweep(nw *Network, r *Response) {
+	if nw.N <= 3 && nw.Out >= 0 && nw.In >= 0 && !a.general {
+		a.sweepSmall(nw, r)
+		return
+	}
+	a.sweepLU(nw, r)
+}
+
+// sweepLU is the general sweep: a complex LU of Y(jω) at every point.
+// sweepSmall must agree with it.
+func (a *Analyzer) sweepLU(nw *Network, r *Response) {
 	n := nw.N
 	a.size(n)
 	prevPhase := 0.0
@@ -135,6 +146,14 @@ func (a *Analyzer) Sweep(nw *Network, r *Response) {
 			a.yin[nw.In*n+nw.In] -= complex(nw.RSigG, 0)
 			zin = a.drivingPoint(&a.luIn, a.yin, n, nw.In)
 		}
+		a.store(r, k, h, zin, zout, noise, &prevPhase)
+	}
+}
+
+// store writes one sweep point: gain in dB and unwrapped phase, the
+// impedances and the noise densities.
+func (a *Analyzer) store(r *Response, k int, h complex128, zin, zout, noise float64, prevPhase *float64) {
+	{
 		r.Gain[k] = h
 		mag := cmplx.Abs(h)
 		r.MagDB[k] = 20 * math.Log10(mag)
@@ -143,14 +162,14 @@ func (a *Analyzer) Sweep(nw *Network, r *Response) {
 		}
 		ph := cmplx.Phase(h) * 180 / math.Pi
 		if k > 0 {
-			for ph-prevPhase > 180 {
+			for ph-*prevPhase > 180 {
 				ph -= 360
 			}
-			for ph-prevPhase < -180 {
+			for ph-*prevPhase < -180 {
 				ph += 360
 			}
 		}
-		prevPhase = ph
+		*prevPhase = ph
 		r.PhaseDeg[k] = ph
 		r.Zin[k] = zin
 		r.Zout[k] = zout
