@@ -26,10 +26,22 @@ export function relevant(info, stage, load, bias) {
 const infOK = (info) => Boolean(info.inf_ok || (info.choices || []).includes('inf'));
 const isWordKey = (info) => Array.isArray(info.choices) && info.choices.length > 0 && !infOK(info);
 
+/**
+ * The bounds of a number key now: a bound that follows another key
+ * (min_from / max_from, e.g. vin ≤ vdd) takes that key's current value.
+ */
+export function bounds(info, valueOf = () => undefined) {
+  const follow = (from, fallback) => {
+    if (!from) return fallback;
+    const v = parseSI(valueOf(from) ?? '').value;
+    return v === undefined ? fallback : v;
+  };
+  return { min: follow(info.min_from, Number(info.min)), max: follow(info.max_from, Number(info.max)) };
+}
+
 /** Maps a slider position (0…SLIDER_STEPS) to a value and back. */
-export function sliderScale(info) {
-  const min = Number(info.min);
-  const max = Number(info.max);
+export function sliderScale(info, valueOf) {
+  const { min, max } = bounds(info, valueOf);
   const inf = infOK(info);
   const useLog = info.log && max > 0;
   const lo = useLog ? (min > 0 ? min : max * 1e-9) : min;
@@ -55,18 +67,22 @@ export function sliderScale(info) {
   return { toValue, toPos, steps: n };
 }
 
-function parseValue(info, text) {
+function parseValue(info, text, valueOf) {
   const s = String(text).trim();
   if (infOK(info) && /^(inf|∞|infinity|open|none)$/i.test(s)) return { value: Infinity };
   const r = parseSI(s, info.unit && info.unit.length <= 2 ? info.unit : '');
   if (r.error) return r;
   const v = r.value;
   if (info.integer && !Number.isInteger(v)) return { error: `${info.label} takes whole numbers` };
-  const min = Number(info.min);
-  const max = Number(info.max);
-  const zeroOK = info.zero_ok || (info.min === 0);
-  if (!(v >= min && v <= max) && !(zeroOK && v === 0)) {
-    return { error: `must be between ${formatSI(min, 4, info.unit || '')} and ${formatSI(max, 4, info.unit || '')}${infOK(info) ? ', or inf' : ''}` };
+  const { min, max } = bounds(info, valueOf);
+  const zeroOK = Boolean(info.zero_means);
+  const below = info.min_exclusive ? v <= min : v < min;
+  const above = info.max_exclusive ? v >= max : v > max;
+  if ((below || above) && !(zeroOK && v === 0)) {
+    const lo = `${info.min_exclusive ? 'above' : 'from'} ${formatSI(min, 4, info.unit || '')}${info.min_from ? ` (${info.min_from})` : ''}`;
+    const hi = `${info.max_exclusive ? 'below' : 'up to'} ${formatSI(max, 4, info.unit || '')}${info.max_from ? ` (${info.max_from})` : ''}`;
+    const extra = [infOK(info) ? 'inf' : '', zeroOK ? `0 (${info.zero_means})` : ''].filter(Boolean).join(' or ');
+    return { error: `must be ${lo} ${hi}${extra ? `, or ${extra}` : ''}` };
   }
   return { value: v };
 }
@@ -172,7 +188,9 @@ export class Controls {
       this.rows.set(info.key, { row, info, select: sel });
       return row;
     }
-    const scale = sliderScale(info);
+    const valueOf = (k) => this.values.get(k) ?? this.defaultOf(k);
+    const scaleNow = () => sliderScale(info, valueOf);
+    const scale = scaleNow();
     const slider = h('input', {
       type: 'range', id: `${id}-slider`, min: 0, max: scale.steps, step: 1,
       'aria-label': `${info.label || info.key} (slider${info.log ? ', logarithmic' : ''})`,
@@ -191,26 +209,26 @@ export class Controls {
       msg,
       h('p', { class: 'ctl-doc', id: `${id}-doc`, text: info.doc || '' }),
     );
-    const entry = { row, info, slider, field, msg, scale };
+    const entry = { row, info, slider, field, msg, scale: scaleNow };
     slider.addEventListener('input', () => {
-      const v = scale.toValue(Number(slider.value));
+      const v = scaleNow().toValue(Number(slider.value));
       const text = fragmentText(info, v);
       field.value = displayText(info, text);
       this.setMessage(entry, '');
       this.onEdit(info.key, text, { final: false });
     });
     slider.addEventListener('change', () => {
-      const v = scale.toValue(Number(slider.value));
+      const v = scaleNow().toValue(Number(slider.value));
       this.onEdit(info.key, fragmentText(info, v), { final: true });
     });
     const commit = () => {
-      const r = parseValue(info, field.value);
+      const r = parseValue(info, field.value, valueOf);
       if (r.error) {
         this.setMessage(entry, `${r.error}; keeping ${displayText(info, this.values.get(info.key) ?? '')}`);
         return;
       }
       this.setMessage(entry, '');
-      slider.value = String(scale.toPos(r.value));
+      slider.value = String(scaleNow().toPos(r.value));
       this.onEdit(info.key, fragmentText(info, r.value), { final: true });
     };
     field.addEventListener('change', commit);
@@ -227,6 +245,11 @@ export class Controls {
     return row;
   }
 
+  defaultOf(key) {
+    const info = this.byKey.get(key);
+    return info ? defaultText(info, this.values.get('stage')) : undefined;
+  }
+
   setMessage(entry, text) {
     entry.msg.textContent = text;
     entry.field.setAttribute('aria-invalid', text ? 'true' : 'false');
@@ -240,7 +263,7 @@ export class Controls {
       const info = entry.info;
       const rel = relevant(info, stage, load, bias);
       entry.row.hidden = !rel;
-      const text = values.has(key) ? values.get(key) : defaultText(info);
+      const text = values.has(key) ? values.get(key) : defaultText(info, stage);
       if (entry.radios) {
         for (const input of entry.radios.querySelectorAll('input')) input.checked = input.value === text;
         continue;
@@ -253,7 +276,7 @@ export class Controls {
       const invalid = entry.row.classList.contains('invalid');
       if (!active && !invalid) entry.field.value = displayText(info, text);
       const v = text === 'inf' ? Infinity : parseSI(text).value;
-      if (v !== undefined && document.activeElement !== entry.slider) entry.slider.value = String(entry.scale.toPos(v));
+      if (v !== undefined && document.activeElement !== entry.slider) entry.slider.value = String(entry.scale().toPos(v));
       entry.row.classList.toggle('flagged', badKeys.has(key));
     }
   }
@@ -265,8 +288,9 @@ export class Controls {
   }
 }
 
-export function defaultText(info) {
+export function defaultText(info, stage) {
   if (info.default_word !== undefined && info.default_word !== '') return info.default_word;
+  if (stage && info.stage_defaults && info.stage_defaults[stage] !== undefined) return exactSI(Number(info.stage_defaults[stage]));
   if (info.default === null || info.default === undefined) return infOK(info) ? 'inf' : '';
   return exactSI(Number(info.default));
 }

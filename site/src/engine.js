@@ -97,6 +97,7 @@ export class Engine {
 
   run(fragment, resolvers) {
     this.busy = true;
+    document.body.dataset.busy = 'true';
     this.call('evaluate', fragment).then(
       (r) => {
         for (const x of resolvers) x.resolve(r);
@@ -114,5 +115,6 @@ export class Engine {
     const q = this.queued;
     this.queued = null;
     if (q) this.run(q.fragment, q.resolvers);
+    else document.body.dataset.busy = 'false';
   }
 }

@@ -54,9 +54,9 @@ async function loadSchema(proc) {
   state.controls.build(state.schema);
 }
 
-function schemaDefault(key) {
+function schemaDefault(key, stage = state.values.get('stage')) {
   const info = state.schema.find((k) => k.key === key);
-  return info ? defaultText(info) : undefined;
+  return info ? defaultText(info, stage) : undefined;
 }
 
 function sameValue(a, b) {
@@ -278,4 +278,4 @@ async function main() {
 $('build-version').textContent = PAGE_VERSION;
 main();
 // for the browser tests: the split fragment helper of the page
-window.stagewrightPage = { splitFragment };
+window.stagewrightPage = { splitFragment, canonical: () => state.canonical, result: () => state.result };

@@ -47,6 +47,9 @@ export async function launch() {
 
 /** Opens the single file with a fragment and waits for the first result. */
 export async function open(page, fragment = '') {
+  // A new document each time: going to the same file with another hash would
+  // only change the hash and leave the old result on the page.
+  await page.goto('about:blank');
   await page.goto(singleURL + (fragment ? `#${fragment}` : ''));
   await waitReady(page);
 }
@@ -62,4 +65,13 @@ export async function waitReady(page, previous = 0) {
   );
   const state = await page.evaluate(() => document.body.dataset.state);
   if (state === 'failed') throw new Error(`engine failed: ${await page.textContent('#status')}`);
+}
+
+/** Runs action and waits until the page has shown at least one newer evaluation. */
+export async function afterEvaluation(page, action) {
+  const n0 = await page.evaluate(() => Number(document.body.dataset.evaluations || 0));
+  await action();
+  await waitReady(page, n0);
+  // Coalesced requests: wait until the engine is idle with nothing queued.
+  await page.waitForFunction(() => document.body.dataset.busy !== 'true');
 }
