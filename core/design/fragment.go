@@ -92,21 +92,24 @@ func Decode(fragment string) (Design, error) {
 			report(pos, "", rawValue, "empty key (write key=value)")
 			continue
 		}
-		value, err := url.PathUnescape(rawValue)
-		bad := false
-		if err != nil {
-			report(pos, key, rawValue, "the value has a bad percent escape ("+escapeReason(err)+")")
-			value, bad = rawValue, true
-		} else if n := utf8.RuneCountInString(value); n > MaxValueChars {
-			report(pos, key, value, "the value is "+strconv.Itoa(n)+" characters long; at most "+
-				strconv.Itoa(MaxValueChars)+" are read")
-			bad = true
+		// What is wrong with the value is reported only for a known key
+		// given for the first time: a repeat or an unknown key says so alone.
+		value, valueProblem := rawValue, ""
+		if v, err := url.PathUnescape(rawValue); err != nil {
+			valueProblem = "the value has a bad percent escape (" + escapeReason(err) + ")"
+		} else if value = v; utf8.RuneCountInString(value) > MaxValueChars {
+			valueProblem = "the value is " + strconv.Itoa(utf8.RuneCountInString(value)) +
+				" characters long; at most " + strconv.Itoa(MaxValueChars) + " are read"
 		}
+		bad := valueProblem != ""
 
 		if i, ok := keyIndex[key]; ok {
 			if given[i].present {
 				report(pos, key, value, "repeated key: the first value ("+given[i].text+") is kept")
 				continue
+			}
+			if bad {
+				report(pos, key, value, valueProblem)
 			}
 			given[i] = givenValue{text: value, pos: pos, present: true, bad: bad}
 			continue
@@ -117,7 +120,9 @@ func Decode(fragment string) (Design, error) {
 				continue
 			}
 			o := givenOverride{key: key, text: value, pos: pos}
-			if !bad {
+			if bad {
+				report(pos, key, value, valueProblem)
+			} else {
 				var msg string
 				if o.value, msg = parseNumber(value, f.span(), false, false, f.label, f.unit, f.zeroMeans); msg != "" {
 					report(pos, key, value, msg)

@@ -247,6 +247,7 @@ func TestDecodeProblems(t *testing.T) {
 		{"ppd fraction", "ppd=2.5", "ppd", "2.5", "whole number", "ppd", "40"},
 		{"bad key escape", "%zz=1", "%zz", "1", `the key has a bad percent escape (invalid escape "%zz")`, "", ""},
 		{"bad value escape", "w=%zz", "w", "%zz", "the value has a bad percent escape", "w", "10e-6"},
+		{"unknown key, bad value", "zzzzzz=%zz", "zzzzzz", "%zz", "unknown key", "", ""},
 		{"long value", "w=" + strings.Repeat("1", 65), "w", strings.Repeat("1", 65), "at most 64", "w", "10e-6"},
 		{"override range", "n.tox=0.1n", "n.tox", "0.1n", "oxide thickness must be between 500p and 100n (m)", "", ""},
 		{"override zero-or-range", "n.ecrit=1k", "n.ecrit", "1k", "critical field must be 0 (off) or between 100k and 10G (V/m)", "", ""},
@@ -321,6 +322,25 @@ func TestDecodeListsEveryProblem(t *testing.T) {
 	}
 	if p, ok := fe.Problem("stage"); !ok || p.Value != "xx" {
 		t.Errorf("Problem(stage) = %v %v", p, ok)
+	}
+}
+
+// TestDecodeOneProblemPerPair: a pair is reported once, for the first thing
+// wrong with it, so a repeated bad value does not bury the rest.
+func TestDecodeOneProblemPerPair(t *testing.T) {
+	_, err := Decode("n.vt0=%zz&n.vt0=%zz&w=%zz&w=1u&zz=" + strings.Repeat("x", 80))
+	var fe *FragmentError
+	if !errors.As(err, &fe) {
+		t.Fatalf("error %v, want *FragmentError", err)
+	}
+	want := []string{"bad percent escape", "repeated key", "bad percent escape", "repeated key", "unknown key"}
+	if len(fe.Problems) != len(want) {
+		t.Fatalf("problems %q, want %d", fe.Problems, len(want))
+	}
+	for i, p := range fe.Problems {
+		if !strings.Contains(p.Message, want[i]) {
+			t.Errorf("problem %d = %q, want %q", i, p, want[i])
+		}
 	}
 }
 
