@@ -55,7 +55,8 @@ type placedProblem struct {
 // are read by units.Parse ("4.7k", "10u", "1e-3"); a few keys take words.
 // The order of the pairs does not matter. A key given twice is a problem and
 // the first value is kept. A fragment longer than MaxFragmentBytes is not
-// read: Decode returns the d180 defaults and a single problem.
+// read: Decode returns the d180 defaults and a single problem. Overrides
+// come sorted by key, and nil when the fragment has none.
 func Decode(fragment string) (Design, error) {
 	if len(fragment) > MaxFragmentBytes {
 		return Default(""), &FragmentError{Problems: []Problem{{
@@ -426,7 +427,8 @@ func editDistance(a, b string, limit int) int {
 // units.Exact, so Decode reads back the same float64 bit for bit; ppd is a
 // whole number and an infinite rl is "inf".
 //
-// For every design that passes Validate, Decode(d.Encode()) returns d.
+// For every design that passes Validate and has nil rather than empty
+// Overrides (as Default and Decode make it), Decode(d.Encode()) returns d.
 // A design that does not pass is still written, bad values and all, and
 // Decode reports them.
 func (d Design) Encode() string {

@@ -15,10 +15,10 @@ import (
 	"stagewright/core/units"
 )
 
-// ref reads a number the way an independent reader would: strconv.ParseFloat
+// refFloat reads a number the way an independent reader would: strconv.ParseFloat
 // on plain e-notation. Decode goes through units.Parse and its prefixes, so
 // agreement checks the prefix handling against the standard library.
-func ref(t *testing.T, s string) float64 {
+func refFloat(t *testing.T, s string) float64 {
 	t.Helper()
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil {
@@ -27,9 +27,9 @@ func ref(t *testing.T, s string) float64 {
 	return v
 }
 
-// value returns the number a design holds for a plain key, or the value of
+// keyValue returns the number a design holds for a plain key, or the value of
 // an override.
-func value(d Design, key string) float64 {
+func keyValue(d Design, key string) float64 {
 	if i, ok := keyIndex[key]; ok && !keyTable[i].isWord() {
 		return keyTable[i].get(&d)
 	}
@@ -174,9 +174,9 @@ func TestDecodeGood(t *testing.T) {
 		}
 		want := math.Inf(1)
 		if tt.want != "inf" {
-			want = ref(t, tt.want)
+			want = refFloat(t, tt.want)
 		}
-		if got := value(d, tt.key); !sameFloat(got, want) {
+		if got := keyValue(d, tt.key); !sameFloat(got, want) {
 			t.Errorf("Decode(%q) %s = %g, want %g", tt.fragment, tt.key, got, want)
 		}
 		if err := d.Validate(); err != nil {
@@ -277,9 +277,9 @@ func TestDecodeProblems(t *testing.T) {
 			if tt.after != "" {
 				want := math.Inf(1)
 				if tt.want != "inf" {
-					want = ref(t, tt.want)
+					want = refFloat(t, tt.want)
 				}
-				if got := value(d, tt.after); !sameFloat(got, want) {
+				if got := keyValue(d, tt.after); !sameFloat(got, want) {
 					t.Errorf("Decode(%q) %s = %g, want %g", tt.fragment, tt.after, got, want)
 				}
 			}
@@ -564,7 +564,7 @@ func TestSchema(t *testing.T) {
 				t.Errorf("%s: default %g outside %g … %g", k.Key, k.Default, k.Min, k.Max)
 			}
 			if k.DefaultWord == "" {
-				if got := value(d, k.Key); !math.IsNaN(got) && got != k.Default {
+				if got := keyValue(d, k.Key); !math.IsNaN(got) && got != k.Default {
 					t.Errorf("%s: schema default %g, Default(%q) holds %g", k.Key, k.Default, proc, got)
 				}
 			}
@@ -857,7 +857,7 @@ func randomDesign(rng *rand.Rand) Design {
 	return d
 }
 
-var sink Design
+var sinkDesign Design
 
 func BenchmarkDecode(b *testing.B) {
 	f := "v=1&stage=cs&pol=n&proc=d180&vdd=1.8&temp=27&w=20u&l=500n&bias=id&id=100u&load=r&rd=10k&rs=0" +
@@ -868,7 +868,7 @@ func BenchmarkDecode(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		sink = d
+		sinkDesign = d
 	}
 }
 
