@@ -38,11 +38,13 @@ func (r *Response) Resize(n int) {
 }
 
 // LogSweep fills f with a log-spaced sweep from fmin to fmax at ppd points
-// per decade (both ends included) and returns it, reusing f's storage.
+// per decade and returns it, reusing f's storage. Both ends are included:
+// the last step is shorter when the range is not a whole number of steps.
+// The count is ⌈ppd·log10(fmax/fmin)⌉ + 1.
 func LogSweep(f []float64, fmin, fmax float64, ppd int) []float64 {
-	dec := math.Log10(fmax / fmin)
-	n := int(math.Floor(dec*float64(ppd)+1e-9)) + 1
-	if n < 2 {
+	steps := math.Ceil(float64(ppd)*math.Log10(fmax/fmin) - 1e-9)
+	n := int(steps) + 1
+	if n < 2 || math.IsNaN(steps) {
 		n = 2
 	}
 	if cap(f) < n {
@@ -52,7 +54,7 @@ func LogSweep(f []float64, fmin, fmax float64, ppd int) []float64 {
 	for i := range f {
 		f[i] = fmin * math.Pow(10, float64(i)/float64(ppd))
 	}
-	f[n-1] = math.Min(f[n-1], fmax)
+	f[n-1] = fmax
 	return f
 }
 

@@ -228,3 +228,10 @@ func TestLogSweep(t *testing.T) {
 		t.Errorf("sweep has %d points from %g to %g", len(f), f[0], f[len(f)-1])
 	}
 }
+
+func TestLogSweepPartialDecade(t *testing.T) {
+	f := LogSweep(nil, 1, 5e3, 10) // 3.699 decades: ⌈36.99⌉ + 1 = 38 points, ending at fmax
+	if len(f) != 38 || f[len(f)-1] != 5e3 || !(f[len(f)-2] < 5e3) {
+		t.Errorf("%d points, last two %g %g", len(f), f[len(f)-2], f[len(f)-1])
+	}
+}

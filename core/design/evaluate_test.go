@@ -285,3 +285,14 @@ func TestDefaultsWork(t *testing.T) {
 		}
 	}
 }
+
+// The sweep has exactly the points the key table promises (SweepPoints).
+func TestSweepPointCount(t *testing.T) {
+	for _, frag := range []string{"fmin=1&fmax=5k&ppd=10", "fmin=10&fmax=100G&ppd=40", "fmin=3&fmax=7&ppd=1"} {
+		d := mustDecode(t, frag)
+		r := Evaluate(d)
+		if !r.OK || len(r.AC.F) != d.SweepPoints() || r.AC.F[len(r.AC.F)-1] != d.FMax || r.AC.F[0] != d.FMin {
+			t.Errorf("%s: %d points (want %d) from %g to %g", frag, len(r.AC.F), d.SweepPoints(), r.AC.F[0], r.AC.F[len(r.AC.F)-1])
+		}
+	}
+}

@@ -260,8 +260,8 @@ var keyTable = [...]keyDef{
 	},
 	{
 		name: "vout", group: GroupBias, label: "output DC level", unit: "V",
-		doc:  "Target output DC level with a transistor load, V (bias id and gmid).",
-		when: []Condition{{Loads: []string{string(LoadActive), string(LoadDiode)}, Biases: []string{string(BiasID), string(BiasGmID)}}},
+		doc:  "Target output DC level of a cs or cg stage with a current-source load, V (bias id and gmid; a diode load sets the level itself).",
+		when: []Condition{{Stages: []string{string(CommonSource), string(CommonGate)}, Loads: []string{string(LoadActive)}, Biases: []string{string(BiasID), string(BiasGmID)}}},
 		span: upToVDD,
 		def:  func(pr *device.Process, d *Design) float64 { return math.Min(defaultsOf(pr).VOut, d.VDD) },
 		get:  func(d *Design) float64 { return d.VOut },
