@@ -393,7 +393,7 @@ func TestEncode(t *testing.T) {
 		{"bias=vin", []string{"&vin=700m&", "&w=10u&"}, []string{"&id=", "&gmid="}},
 		{"stage=cg", []string{"&vg=1.1&", "&rd=10k&"}, []string{"&rs="}},
 		{"load=active&bias=vin", []string{"&lw=10u&", "&ll=1u&", "&vbl=700m&"}, []string{"&rd=", "&vout="}},
-		{"load=diode", []string{"&lw=10u&", "&ll=1u&", "&vout=900m&"}, []string{"&rd=", "&vbl="}},
+		{"load=diode", []string{"&lw=10u&", "&ll=1u&"}, []string{"&rd=", "&vbl=", "&vout="}},
 		{"stage=sf", []string{"&rs=5k&"}, []string{"&rd="}},
 		{"stage=sf&load=active", []string{"&lw="}, []string{"&rs=", "&rd="}},
 		// An irrelevant key is written when it is not at its default.
