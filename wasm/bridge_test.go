@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"math"
 	"strings"
 	"testing"
 )
@@ -37,7 +38,13 @@ type resultView struct {
 }
 
 func TestEvaluateReturnsAResult(t *testing.T) {
-	d := call(t, "evaluate", StringArg("v=1&stage=cs&pol=n&proc=d180&bias=id&id=100u&load=r&rd=10k"))
+	// evaluateMany carries the series in JSON; evaluate takes them out.
+	many := call(t, "evaluateMany", ArrayArg(StringArg("v=1&stage=cs&pol=n&proc=d180&bias=id&id=100u&load=r&rd=10k")))
+	var items []decoded
+	if err := json.Unmarshal(many.Result, &items); err != nil || len(items) != 1 {
+		t.Fatalf("evaluateMany: %v, %d items", err, len(items))
+	}
+	d := items[0]
 	if d.Error != nil {
 		t.Fatalf("error %+v for a good design", d.Error)
 	}
@@ -54,6 +61,64 @@ func TestEvaluateReturnsAResult(t *testing.T) {
 	}
 	if !strings.Contains(r.Design, "stage=cs") {
 		t.Errorf("canonical design %q lacks stage=cs", r.Design)
+	}
+}
+
+func TestEvaluateSplitsSeries(t *testing.T) {
+	const fragment = "v=1&stage=sf&load=active&ppd=20"
+	resp := Handle("evaluate", []Arg{StringArg(fragment)})
+	want := map[[2]string]bool{{"ac", "f"}: true, {"ac", "mag_db"}: true, {"ac", "phase_deg"}: true, {"ac", "zin"}: true,
+		{"ac", "zout"}: true, {"noise", "f"}: true, {"noise", "out"}: true, {"noise", "in"}: true}
+	if len(resp.Series) != len(want) {
+		t.Fatalf("%d series, want %d", len(resp.Series), len(want))
+	}
+	// Copy now: the series belong to the shared evaluator.
+	split := map[[2]string][]float64{}
+	for _, s := range resp.Series {
+		if !want[s.Path] {
+			t.Errorf("unexpected series %v", s.Path)
+		}
+		split[s.Path] = append([]float64(nil), s.Values...)
+	}
+	var stripped struct {
+		AC map[string]any `json:"ac"`
+	}
+	if err := json.Unmarshal(resp.Result.(json.RawMessage), &stripped); err != nil {
+		t.Fatal(err)
+	}
+	if f, ok := stripped.AC["f"].([]any); !ok || len(f) != 0 {
+		t.Errorf("ac.f in the JSON is %v, want an empty array", stripped.AC["f"])
+	}
+	// The same design through the JSON path gives the same numbers to the 8
+	// significant digits the JSON carries (design.Floats writes 'g', 8), so
+	// a relative 1e-7 covers the rounding.
+	many := call(t, "evaluateMany", ArrayArg(StringArg(fragment)))
+	var items []struct {
+		Result struct {
+			AC    map[string]json.RawMessage `json:"ac"`
+			Noise map[string]json.RawMessage `json:"noise"`
+		} `json:"result"`
+	}
+	if err := json.Unmarshal(many.Result, &items); err != nil {
+		t.Fatal(err)
+	}
+	for path, values := range split {
+		var viaJSON []float64
+		raw := items[0].Result.AC[path[1]]
+		if path[0] == "noise" {
+			raw = items[0].Result.Noise[path[1]]
+		}
+		if err := json.Unmarshal(raw, &viaJSON); err != nil {
+			t.Fatalf("%v: %v", path, err)
+		}
+		if len(viaJSON) != len(values) || len(values) < 2 {
+			t.Fatalf("%v: %d values split, %d via JSON", path, len(values), len(viaJSON))
+		}
+		for i := range values {
+			if d := math.Abs(values[i] - viaJSON[i]); d > 1e-7*math.Abs(values[i]) {
+				t.Fatalf("%v[%d]: split %g, JSON %g", path, i, values[i], viaJSON[i])
+			}
+		}
 	}
 }
 

@@ -31,10 +31,16 @@ func schema(proc string) Response {
 
 // evaluate answers evaluate(fragment). The result is encoded at once,
 // because its series belong to the shared evaluator and the next call
-// overwrites them.
-func evaluate(fragment string) Response {
+// overwrites them. With split, the sweep series are left out of the JSON
+// and returned as Series (still the evaluator's memory: the glue copies
+// them into JavaScript before the next call).
+func evaluate(fragment string, split bool) Response {
 	r := evaluator.EvaluateFragment(fragment)
-	resp := Response{Result: json.RawMessage(r.JSON())}
+	var series []Series
+	if split {
+		series = splitSeries(&r)
+	}
+	resp := Response{Result: json.RawMessage(r.JSON()), Series: series}
 	if !r.OK && r.Error != nil {
 		resp.Error = &ErrorInfo{Code: r.Error.Code, Message: r.Error.Message, Key: r.Error.Key}
 	}
@@ -47,4 +53,26 @@ func quoteShort(s string) string {
 	}
 	b, _ := json.Marshal(s)
 	return string(b)
+}
+
+// splitSeries takes the sweep series out of r (replacing r.AC and r.Noise
+// by copies without them) and returns them with their places.
+func splitSeries(r *design.Result) []Series {
+	var out []Series
+	if r.AC != nil {
+		ac := *r.AC
+		out = append(out,
+			Series{[2]string{"ac", "f"}, ac.F}, Series{[2]string{"ac", "mag_db"}, ac.MagDB},
+			Series{[2]string{"ac", "phase_deg"}, ac.PhaseDeg}, Series{[2]string{"ac", "zin"}, ac.Zin},
+			Series{[2]string{"ac", "zout"}, ac.Zout})
+		ac.F, ac.MagDB, ac.PhaseDeg, ac.Zin, ac.Zout = nil, nil, nil, nil, nil
+		r.AC = &ac
+	}
+	if r.Noise != nil {
+		n := *r.Noise
+		out = append(out, Series{[2]string{"noise", "f"}, n.F}, Series{[2]string{"noise", "out"}, n.Out}, Series{[2]string{"noise", "in"}, n.In})
+		n.F, n.Out, n.In = nil, nil, nil
+		r.Noise = &n
+	}
+	return out
 }

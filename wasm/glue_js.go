@@ -3,6 +3,9 @@
 package main
 
 import (
+	"encoding/binary"
+	"math"
+
 	"github.com/hack-pad/safejs"
 )
 
@@ -77,7 +80,71 @@ func answer(jsonObj safejs.Value, method string, args []safejs.Value) (out any) 
 		println("stagewright:", method, "recovered from a panic:\n"+debugStack)
 		debugStack = ""
 	}
-	return parse(jsonObj, Encode(resp))
+	out = parse(jsonObj, Encode(resp))
+	if len(resp.Series) > 0 {
+		if obj, ok := out.(safejs.Value); ok {
+			if err := attachSeries(obj, resp.Series); err != nil {
+				return parse(jsonObj, Encode(Response{Error: &ErrorInfo{Code: CodeInternal, Message: method + ": could not hand over the sweep: " + err.Error()}}))
+			}
+		}
+	}
+	return out
+}
+
+// seriesBytes is reused between calls so a slider move does not allocate
+// a new buffer for the arrays.
+var seriesBytes []byte
+
+// attachSeries copies each series into a new Float64Array and sets it at
+// its place in obj.result. Non-finite values cross as NaN; the page turns
+// them into null, as the JSON path would.
+func attachSeries(obj safejs.Value, series []Series) error {
+	result, err := obj.Get("result")
+	if err != nil || result.Type() != safejs.TypeObject {
+		return err
+	}
+	global := safejs.Global()
+	f64, err := global.Get("Float64Array")
+	if err != nil {
+		return err
+	}
+	u8, err := global.Get("Uint8Array")
+	if err != nil {
+		return err
+	}
+	for _, s := range series {
+		parent, err := result.Get(s.Path[0])
+		if err != nil || parent.Type() != safejs.TypeObject {
+			continue
+		}
+		n := len(s.Values)
+		if cap(seriesBytes) < 8*n {
+			seriesBytes = make([]byte, 8*n)
+		}
+		buf := seriesBytes[:8*n]
+		for i, v := range s.Values {
+			binary.LittleEndian.PutUint64(buf[8*i:], math.Float64bits(v))
+		}
+		arr, err := f64.New(n)
+		if err != nil {
+			return err
+		}
+		ab, err := arr.Get("buffer")
+		if err != nil {
+			return err
+		}
+		view, err := u8.New(ab)
+		if err != nil {
+			return err
+		}
+		if _, err := safejs.CopyBytesToJS(view, buf); err != nil {
+			return err
+		}
+		if err := parent.Set(s.Path[1], arr); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // toArg converts a JavaScript value into the bridge's plain argument form.

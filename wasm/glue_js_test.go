@@ -3,6 +3,8 @@
 package main
 
 import (
+	"encoding/binary"
+	"math"
 	"testing"
 
 	"github.com/hack-pad/safejs"
@@ -49,9 +51,19 @@ func TestGlueEvaluate(t *testing.T) {
 		msg, _ := field(t, resp, "error", "message").String()
 		t.Fatalf("result not ok: %s", msg)
 	}
-	n, err := field(t, resp, "result", "ac", "f").Length()
+	f := field(t, resp, "result", "ac", "f")
+	n, err := f.Length()
 	if err != nil || n < 2 {
 		t.Errorf("ac.f has %d points (%v)", n, err)
+	}
+	f64, _ := safejs.Global().Get("Float64Array")
+	if is, _ := f.InstanceOf(f64); !is {
+		t.Error("ac.f did not cross as a Float64Array")
+	}
+	// The sweep starts at fmin, 1 Hz by default (see the key table).
+	first, _ := f.Index(0)
+	if v, _ := first.Float(); v != 1 {
+		t.Errorf("ac.f[0] = %g, want the default fmin 1 Hz", v)
 	}
 }
 
@@ -91,5 +103,69 @@ func TestGlueMalformedCalls(t *testing.T) {
 	second, _ := field(t, resp, "result").Index(1)
 	if code, _ := field(t, second, "error", "code").String(); code != CodeRequest {
 		t.Errorf("evaluateMany item 1 (a number): code %q", code)
+	}
+}
+
+// Benchmarks of the crossing, run under Node:
+//
+//	GOOS=js GOARCH=wasm go test -exec=$(go env GOROOT)/lib/wasm/go_js_wasm_exec -run XXX -bench . ./wasm/
+//
+// They split one evaluate call into the core's work, the JSON encoding in Go
+// and the rest (JSON.parse in JavaScript), and time the alternative of
+// copying the big arrays into Float64Arrays.
+const benchFragment = "v=1&stage=cs&pol=n&proc=d180&bias=id&id=100u&load=r&rd=10k"
+
+func BenchmarkGlueEvaluate(b *testing.B) {
+	b.ReportAllocs()
+	if err := register(); err != nil {
+		b.Fatal(err)
+	}
+	ns, _ := safejs.Global().Get("stagewright")
+	for b.Loop() {
+		if _, err := ns.Call("evaluate", benchFragment); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkCoreEvaluate(b *testing.B) {
+	b.ReportAllocs()
+	for b.Loop() {
+		_ = evaluator.EvaluateFragment(benchFragment)
+	}
+}
+
+func BenchmarkCoreEvaluateAndJSON(b *testing.B) {
+	b.ReportAllocs()
+	for b.Loop() {
+		r := evaluator.EvaluateFragment(benchFragment)
+		_ = r.JSON()
+	}
+}
+
+// BenchmarkFloat64ArrayCopy copies seven series of the default sweep's
+// length into Float64Arrays, the alternative to carrying them in JSON.
+func BenchmarkFloat64ArrayCopy(b *testing.B) {
+	b.ReportAllocs()
+	r := evaluator.EvaluateFragment(benchFragment)
+	n := len(r.AC.F)
+	f64, _ := safejs.Global().Get("Float64Array")
+	u8, _ := safejs.Global().Get("Uint8Array")
+	buf := make([]byte, 8*n)
+	for b.Loop() {
+		for range 7 {
+			arr, err := f64.New(n)
+			if err != nil {
+				b.Fatal(err)
+			}
+			ab, _ := arr.Get("buffer")
+			view, _ := u8.New(ab)
+			for i, v := range r.AC.F {
+				binary.LittleEndian.PutUint64(buf[8*i:], math.Float64bits(v))
+			}
+			if _, err := safejs.CopyBytesToJS(view, buf); err != nil {
+				b.Fatal(err)
+			}
+		}
 	}
 }

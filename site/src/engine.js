@@ -23,6 +23,23 @@ async function loadWasmGz() {
   return r.arrayBuffer();
 }
 
+/**
+ * The sweep series cross from Go as Float64Array (faster than JSON, see
+ * wasm/glue_js_test.go); the page wants plain arrays with null where a
+ * value is not finite, exactly as the JSON path writes them.
+ */
+export function plainSeries(response) {
+  const r = response && response.result;
+  if (!r) return;
+  for (const part of ['ac', 'noise']) {
+    const o = r[part];
+    if (!o) continue;
+    for (const [k, v] of Object.entries(o)) {
+      if (ArrayBuffer.isView(v)) o[k] = Array.from(v, (x) => (Number.isFinite(x) ? x : null));
+    }
+  }
+}
+
 export class Engine {
   constructor() {
     this.worker = null;
@@ -68,6 +85,7 @@ export class Engine {
     const w = this.waiting.get(m.id);
     if (!w) return;
     this.waiting.delete(m.id);
+    plainSeries(m.response);
     w.resolve({ response: m.response, ms: m.ms });
   }
 

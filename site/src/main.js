@@ -134,7 +134,7 @@ function render(response, fragment, fromLink, ms) {
   const pick = { stage: v('stage'), load: v('load'), bias: v('bias') };
   state.controls.show(state.values, pick, bad);
   if (!fromLink && !problems.length && state.canonical) history.replaceState(null, '', `#${state.canonical}`);
-  showNotice(fragment, problems, r.ok ? null : r.error || err);
+  showNotice(fragment, problems, null); // an evaluation failure is shown in the status line
   const rs = parseSI(v('rs') || '0').value || 0;
   const rl = v('rl') === 'inf' ? Infinity : parseSI(v('rl') || 'inf').value ?? Infinity;
   drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
@@ -143,7 +143,8 @@ function render(response, fragment, fromLink, ms) {
   document.body.classList.toggle('no-result', !r.ok);
   renderWarnings($('warnings'), r);
   if (!r.ok) {
-    status(`No operating point: ${(r.error || err || {}).message || 'the engine found none'}`, 'bad');
+    const why = (r.error || err || {}).message || 'no operating point found';
+    status(`No result: ${why}`, 'bad');
     for (const id of ['midband', 'op', 'smallsignal', 'estimates']) clear($(id));
     state.plots.ac.update(null);
     state.plots.noise.update(null);
@@ -196,7 +197,7 @@ function showNotice(fragment, problems, error) {
     );
     box.appendChild(h('p', { class: 'notice-link' }, 'Link as given: ', h('code', { class: 'given', text: fragment.length > 600 ? fragment.slice(0, 600) + '…' : fragment })));
   }
-  if (error && error.code !== 'fragment') box.appendChild(h('p', { class: 'notice-error', text: `${error.message}` }));
+  if (error && !problems.length) box.appendChild(h('p', { class: 'notice-error', text: error.message }));
 }
 
 function setupToolbar() {
@@ -278,4 +279,14 @@ async function main() {
 $('build-version').textContent = PAGE_VERSION;
 main();
 // for the browser tests: the split fragment helper of the page
-window.stagewrightPage = { splitFragment, canonical: () => state.canonical, result: () => state.result };
+window.stagewrightPage = {
+  splitFragment,
+  canonical: () => state.canonical,
+  result: () => state.result,
+  /** Times n evaluations of a fragment in the worker (ms each), for the benchmark test. */
+  async time(fragment, n) {
+    const out = [];
+    for (let i = 0; i < n; i++) out.push((await state.engine.call('evaluate', fragment)).ms);
+    return out;
+  },
+};

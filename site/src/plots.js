@@ -26,6 +26,10 @@ function axis(extra) {
   };
 }
 
+const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-6;
+// On a log axis, grid lines at decades only; the ticks still mark 2…9.
+const decadeGrid = { stroke: COLOURS.grid, width: 1, filter: (u, splits) => splits.map((v) => (isDecade(v) ? v : null)) };
+
 const hzValues = (u, splits) => splits.map((v) => (v == null ? '' : formatSI(v, 3) + 'Hz'));
 
 /** Draws vertical markers (f, label) over the plot area. */
@@ -131,7 +135,7 @@ export function frequencyPlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, db: { auto: true }, deg: { auto: true } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40 }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
         axis({ scale: 'db', label: 'magnitude (dB)', size: 56, values: (u, s) => s.map((v) => `${v}`) }),
         axis({ scale: 'deg', side: 1, label: 'phase (°)', size: 56, grid: { show: false }, values: (u, s) => s.map((v) => `${v}°`) }),
       ],
@@ -196,8 +200,8 @@ export function noisePlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40 }),
-        axis({ label: 'density (V/√Hz)', size: 64, values: (u, s) => s.map((v) => (v == null ? '' : formatSI(v, 2))) }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
+        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, values: (u, s) => s.map((v) => (v == null ? '' : formatSI(v, 2))) }),
       ],
       series: [
         {},

@@ -109,8 +109,10 @@ export function drawSchematic(svg, opts) {
     const mid = cx + 8;
     const dir = type === 'n' ? 1 : -1;
     el('path', { d: `M${mid - 4 * dir},${Y(sy) - 4} L${mid + 4 * dir},${Y(sy)} L${mid - 4 * dir},${Y(sy) + 4} z`, class: 'arrow' }, g);
-    label(tx + 8, y, name, 'lbl dev');
-    label(tx + 8, y + 14, `${type}-type`, 'lbl small');
+    const nameText = el('text', { x: tx + 8, y: Y(y) + 2, class: 'lbl dev' }, g);
+    nameText.textContent = name;
+    const typeText = el('text', { x: tx + 8, y: Y(y) + 14, class: 'lbl small' }, g);
+    typeText.textContent = `${type}-type`;
     return { gateX: gateFrom, top: y - 30, bottom: y + 30, x: tx };
   };
 
@@ -153,9 +155,11 @@ export function drawSchematic(svg, opts) {
       rt.textContent = 'RL';
     }
   };
-  const inputNode = (x, y) => {
+  const inputNode = (x, y, side = 'above') => {
     dot(x, y);
-    label(x - 4, y - 14, 'in', 'lbl node', 'middle');
+    // placed in real coordinates so it stays clear of the wires when mirrored
+    const t = el('text', side === 'right' ? { x: x + 8, y: Y(y) + 5, class: 'lbl node' } : { x: x + 2, y: Y(y) - 8, class: 'lbl node', 'text-anchor': 'middle' }, g);
+    t.textContent = 'in';
   };
   const loadDevice = (yTopTerm, yBotTerm, sourceAtTop) => {
     // load / sink device of the given type between two terminals (n-coordinates)
@@ -197,7 +201,7 @@ export function drawSchematic(svg, opts) {
       dot(col - 76, 176);
       const yIn = 226;
       wire([[col, m1.bottom], [col, yIn]]);
-      inputNode(col, yIn);
+      inputNode(col, yIn, 'right');
       wire([[col, yIn], [col - 40, yIn]]);
       signalSource(col - 40, yIn, 'vsig');
       if (opts.rs > 0) {

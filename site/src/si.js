@@ -59,7 +59,7 @@ export function formatSI(v, digits = 4, unit = '') {
     return formatSI(Number(v.toPrecision(digits)) * (1 + 1e-15), digits, unit);
   }
   text = text.replace('-', '−');
-  return text + (p || unit ? '\u2009' : '') + p + unit;
+  return text + (p || unit ? '\u2009' : '') + (p === 'u' ? 'µ' : p) + unit;
 }
 
 /**
