@@ -71,4 +71,113 @@ type Design struct {
 	NoiseHi    float64
 
 	Overrides []Override // sorted by Key; empty when none
+
+	Aids Aids // inputs of the design aids (corner, targets, sizing, sweep, pinned design)
+}
+
+// Aids holds the inputs of the design aids. Only Corner changes the
+// evaluation itself (see Design.ProcessOf); the rest are read by the aids:
+// distortion and Monte Carlo, sizing to Targets by moving Vary within
+// Ranges, a sweep of one input key, and a pinned reference design.
+type Aids struct {
+	Corner string  // process corner: tt, ss, ff, sf, fs (first letter NMOS, second PMOS)
+	Amp    float64 // V, amplitude of the input sine for distortion
+	MC     int     // Monte Carlo samples, 0 … 10000
+	Seed   int     // seed of every random draw
+
+	Targets Targets
+	Vary    VarSet // the inputs sizing may move
+	Ranges  Ranges // where sizing may move them
+
+	Sweep SweepSpec
+
+	// Pin is a pinned reference design, nil when none. It has no pin of
+	// its own.
+	Pin *Design
+}
+
+// Targets are what sizing aims for; 0 means no target.
+type Targets struct {
+	Gain   float64 // V/V, least |midband gain|
+	F3dB   float64 // Hz, least −3 dB bandwidth
+	GBW    float64 // Hz, least gain–bandwidth product
+	IDD    float64 // A, most supply current
+	Power  float64 // W, most supply power
+	Swing  float64 // V, least output swing
+	Noise  float64 // V, most input-referred rms noise over nlo … nhi
+	Margin float64 // V, least saturation margin |VDS| − VDsat of M1
+}
+
+// Range is a closed interval [Lo, Hi] in SI units.
+type Range struct{ Lo, Hi float64 }
+
+// Ranges bound the inputs sizing may move (vin moves over 0 … vdd).
+type Ranges struct {
+	W, L, ID, RD, RS Range // m, m, A, Ω, Ω
+}
+
+// SweepSpec says which input key a sweep moves, from Lo to Hi (in the key's
+// unit) over N points.
+type SweepSpec struct {
+	Key    string
+	Lo, Hi float64
+	N      int
+}
+
+// VarSet is a set of inputs sizing may move: the bits of VarW … VarVin.
+type VarSet uint8
+
+// The inputs sizing may move, in their canonical order.
+const (
+	VarW   VarSet = 1 << iota // width of M1 (key w)
+	VarL                      // length of M1 (key l)
+	VarID                     // drain current (key id)
+	VarRD                     // drain resistor (key rd)
+	VarRS                     // source resistor (key rs)
+	VarVin                    // input DC level (key vin)
+	varAll = VarW | VarL | VarID | VarRD | VarRS | VarVin
+)
+
+// varNames are the keys of VarW … VarVin in bit order.
+var varNames = []string{"w", "l", "id", "rd", "rs", "vin"}
+
+// VarNames returns the keys sizing may move, in canonical order.
+func VarNames() []string { return append([]string(nil), varNames...) }
+
+// Has reports whether the set holds the input called key ("w").
+func (v VarSet) Has(key string) bool {
+	for i, n := range varNames {
+		if n == key {
+			return v&(1<<i) != 0
+		}
+	}
+	return false
+}
+
+// Keys returns the keys in the set, in canonical order.
+func (v VarSet) Keys() []string {
+	var out []string
+	for i, n := range varNames {
+		if v&(1<<i) != 0 {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// String returns the keys joined by dots ("w.l.id"), or "none".
+func (v VarSet) String() string {
+	if v&varAll == 0 {
+		return "none"
+	}
+	b := make([]byte, 0, 16)
+	for i, n := range varNames {
+		if v&(1<<i) != 0 {
+			if len(b) > 0 {
+				b = append(b, '.')
+			}
+			b = append(b, n...)
+		}
+	}
+	return string(b)
 }

@@ -95,12 +95,18 @@ func Decode(fragment string) (Design, error) {
 		}
 		// What is wrong with the value is reported only for a known key
 		// given for the first time: a repeat or an unknown key says so alone.
+		// A pinned design (pin) holds a whole fragment, so its value may be
+		// as long as a fragment.
+		maxChars := MaxValueChars
+		if i, ok := keyIndex[key]; ok && keyTable[i].long {
+			maxChars = MaxFragmentBytes
+		}
 		value, valueProblem := rawValue, ""
 		if v, err := url.PathUnescape(rawValue); err != nil {
 			valueProblem = "the value has a bad percent escape (" + escapeReason(err) + ")"
-		} else if value = v; utf8.RuneCountInString(value) > MaxValueChars {
+		} else if value = v; utf8.RuneCountInString(value) > maxChars {
 			valueProblem = "the value is " + strconv.Itoa(utf8.RuneCountInString(value)) +
-				" characters long; at most " + strconv.Itoa(MaxValueChars) + " are read"
+				" characters long; at most " + strconv.Itoa(maxChars) + " are read"
 		}
 		bad := valueProblem != ""
 
@@ -188,7 +194,19 @@ func resolve(given *[numKeys]givenValue) (Design, []placedProblem) {
 	for i := range keyTable {
 		k := &keyTable[i]
 		g := &given[i]
-		if k.isWord() {
+		if k.isText() {
+			ok := false
+			if g.present && !g.bad {
+				if msg := k.readText(&d, g.text); msg != "" {
+					problems = append(problems, placedProblem{g.pos, Problem{k.name, g.text, msg}})
+				} else {
+					ok = true
+				}
+			}
+			if !ok {
+				k.readText(&d, k.defText)
+			}
+		} else if k.isWord() {
 			w, ok := "", false
 			if g.present && !g.bad {
 				if w, ok = matchWord(k.words(&d), g.text); !ok {
@@ -420,10 +438,14 @@ func editDistance(a, b string, limit int) int {
 //
 // The keys come in the fixed order of the key table (v stage pol proc vdd
 // temp w l bias id gmid vin vg vout load rd rs lw ll vbl rsig rl cl fmin
-// fmax ppd nlo nhi), then the overrides sorted by key. Every key that matters
-// for the stage, load and bias mode is written, even at its default, so a
-// link keeps its meaning if a default changes later; any other key is
-// written only when it differs from its default. Numbers are written by
+// fmax ppd nlo nhi, then the design aids corner amp mc seed t.gain t.f3db
+// t.gbw t.idd t.power t.swing t.noise t.margin vary lo.w hi.w lo.l hi.l
+// lo.id hi.id lo.rd hi.rd lo.rs hi.rs sw sw.lo sw.hi sw.n pin), then the
+// overrides sorted by key. Every key of the design itself that matters for
+// the stage, load and bias mode is written, even at its default, so a link
+// keeps its meaning if a default changes later; any other key, and every
+// key of the design aids, is written only when it differs from its default.
+// A pinned design is written as its own canonical fragment, percent-encoded. Numbers are written by
 // units.Exact, so Decode reads back the same float64 bit for bit; ppd is a
 // whole number and an infinite rl is "inf".
 //
@@ -449,14 +471,20 @@ func (d *Design) appendFragment(b []byte) []byte {
 	}
 	for i := range keyTable {
 		k := &keyTable[i]
-		relevant := k.relevant(d)
-		if k.isWord() {
+		relevant := k.relevant(d) && !k.optional
+		switch {
+		case k.isText():
+			if t := k.writeText(d); relevant || t != k.defText {
+				pair(k.name)
+				b = append(b, t...)
+			}
+		case k.isWord():
 			w := k.getWord(d)
 			if relevant || w != k.defWord {
 				pair(k.name)
 				b = append(b, w...)
 			}
-		} else {
+		default:
 			v := k.get(d)
 			if relevant || v != k.def(pr, d) {
 				pair(k.name)
@@ -500,7 +528,11 @@ func (d Design) Validate() error {
 	pr := lookupProcess(defaultProcess)
 	for i := range keyTable {
 		k := &keyTable[i]
-		if k.isWord() {
+		if k.isText() {
+			if msg := k.checkText(&d); msg != "" {
+				problems = append(problems, Problem{k.name, k.writeText(&d), msg})
+			}
+		} else if k.isWord() {
 			w := k.getWord(&d)
 			if _, ok := matchWord(k.words(&d), w); !ok {
 				problems = append(problems, Problem{k.name, w, k.wordMessage(&d)})

@@ -30,7 +30,7 @@ func refFloat(t *testing.T, s string) float64 {
 // keyValue returns the number a design holds for a plain key, or the value of
 // an override.
 func keyValue(d Design, key string) float64 {
-	if i, ok := keyIndex[key]; ok && !keyTable[i].isWord() {
+	if i, ok := keyIndex[key]; ok && !keyTable[i].isWord() && !keyTable[i].isText() {
 		return keyTable[i].get(&d)
 	}
 	for _, o := range d.Overrides {
@@ -533,7 +533,8 @@ func TestSweepPoints(t *testing.T) {
 }
 
 func TestSchema(t *testing.T) {
-	groups := []string{GroupDevice, GroupBias, GroupLoad, GroupSourceAndLoad, GroupProcess, GroupSweep}
+	groups := []string{GroupDevice, GroupBias, GroupLoad, GroupSourceAndLoad, GroupProcess, GroupSweep,
+		GroupAids, GroupTargets, GroupSizing}
 	for _, proc := range device.BuiltinNames() {
 		schema := Schema(proc)
 		var keys []string
@@ -557,13 +558,16 @@ func TestSchema(t *testing.T) {
 			if !slices.Contains(groups, k.Group) || k.Label == "" || k.Doc == "" || strings.Contains(k.Doc, "\n") {
 				t.Errorf("%s: group %q label %q doc %q", k.Key, k.Group, k.Label, k.Doc)
 			}
-			if len(k.Choices) > 0 && k.DefaultWord != "" && !slices.Contains(k.Choices, k.DefaultWord) {
+			if k.Text && k.Accepts == "" {
+				t.Errorf("%s: a text key without Accepts", k.Key)
+			}
+			if len(k.Choices) > 0 && k.DefaultWord != "" && k.Separator == "" && !slices.Contains(k.Choices, k.DefaultWord) {
 				t.Errorf("%s: default %q not among %q", k.Key, k.DefaultWord, k.Choices)
 			}
-			if k.DefaultWord == "" && !(k.Default >= k.Min && k.Default <= k.Max || k.Default == 0 && k.ZeroMeans != "") {
+			if k.DefaultWord == "" && !k.Text && !(k.Default >= k.Min && k.Default <= k.Max || k.Default == 0 && k.ZeroMeans != "") {
 				t.Errorf("%s: default %g outside %g … %g", k.Key, k.Default, k.Min, k.Max)
 			}
-			if k.DefaultWord == "" {
+			if k.DefaultWord == "" && !k.Text {
 				if got := keyValue(d, k.Key); !math.IsNaN(got) && got != k.Default {
 					t.Errorf("%s: schema default %g, Default(%q) holds %g", k.Key, k.Default, proc, got)
 				}
@@ -854,7 +858,67 @@ func randomDesign(rng *rand.Rand) Design {
 			}
 		}
 	}
+	d.Aids = randomAids(rng, &pr, &d, num, inside)
 	return d
+}
+
+// randomAids draws valid design-aid inputs for d over the ranges of the
+// task (aids-common.md): corners, amp up to vdd, mc 0 … 10000, targets 0 or
+// in range, any subset to vary, ranges inside the process limits, a sweep of
+// any key within its range, and now and then a pinned design.
+func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi float64, log bool) float64,
+	inside func(lo, hi float64) float64) Aids {
+	corners := []string{"tt", "ss", "ff", "sf", "fs"}
+	a := Aids{
+		Corner: corners[rng.IntN(len(corners))],
+		Amp:    num(1e-6, d.VDD, true),
+		MC:     rng.IntN(10001),
+		Seed:   rng.IntN(1e9 + 1),
+		Vary:   VarSet(rng.IntN(64)),
+	}
+	target := func(lo, hi float64) float64 {
+		if rng.IntN(2) == 0 {
+			return 0
+		}
+		return num(lo, hi, true)
+	}
+	a.Targets = Targets{
+		Gain: target(1e-3, 1e6), F3dB: target(1e-3, 1e12), GBW: target(1e-3, 1e13), IDD: target(1e-12, 1),
+		Power: target(1e-12, 10), Swing: target(1e-3, d.VDD), Noise: target(1e-12, 1), Margin: target(1e-3, d.VDD),
+	}
+	span := func(lo, hi float64) Range {
+		l := num(lo, hi, true)
+		for l >= hi {
+			l = num(lo, hi, true)
+		}
+		h := inside(l, hi)
+		if rng.IntN(6) == 0 {
+			h = hi
+		}
+		return Range{l, h}
+	}
+	a.Ranges = Ranges{W: span(pr.WMin, pr.WMax), L: span(pr.LMin, pr.LMax), ID: span(1e-9, 10e-3),
+		RD: span(1, 1e9), RS: span(1e-3, 1e9)}
+	a.Sweep.Key = sweepWords[rng.IntN(len(sweepWords))]
+	lo, hi, log, _ := d.KeyRange(a.Sweep.Key)
+	a.Sweep.Lo = num(lo, hi, log)
+	for a.Sweep.Lo >= hi {
+		a.Sweep.Lo = num(lo, hi, log)
+	}
+	a.Sweep.Hi = hi
+	if rng.IntN(4) > 0 {
+		for a.Sweep.Hi = num(a.Sweep.Lo, hi, false); a.Sweep.Hi <= a.Sweep.Lo; a.Sweep.Hi = num(a.Sweep.Lo, hi, false) {
+		}
+	}
+	a.Sweep.N = 2 + rng.IntN(999)
+	if rng.IntN(8) == 0 && d.Aids.Pin == nil {
+		// A pinned design: a random design of its own, without a pin.
+		var pin Design
+		for pin = randomDesign(rng); pin.Aids.Pin != nil; pin = randomDesign(rng) {
+		}
+		a.Pin = &pin
+	}
+	return a
 }
 
 var sinkDesign Design
@@ -892,5 +956,139 @@ func BenchmarkValidate(b *testing.B) {
 	b.ReportAllocs()
 	for b.Loop() {
 		sinkErr = d.Validate()
+	}
+}
+
+// TestAidKeys checks the design-aid keys (aids-common.md): their defaults,
+// good and bad values, the canonical form of vary, that they are written
+// only when they differ from their defaults, and the pinned design.
+func TestAidKeys(t *testing.T) {
+	d := Default("")
+	want := Aids{Corner: "tt", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
+		Ranges: Ranges{W: Range{1e-6, 200e-6}, L: Range{180e-9, 3.6e-6}, ID: Range{1e-6, 1e-3},
+			RD: Range{100, 1e6}, RS: Range{10, 100e3}},
+		Sweep: SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}
+	if !reflect.DeepEqual(d.Aids, want) {
+		t.Errorf("default aids = %+v\nwant %+v", d.Aids, want)
+	}
+	good := []struct {
+		fragment string
+		check    func(a Aids) bool
+		encoded  string // what Encode writes for it
+	}{
+		{"corner=sf", func(a Aids) bool { return a.Corner == "sf" }, "corner=sf"},
+		{"amp=50m&mc=0&seed=7", func(a Aids) bool { return a.Amp == 50e-3 && a.MC == 0 && a.Seed == 7 }, "amp=50m&mc=0&seed=7"},
+		{"t.gain=20&t.f3db=50M&t.idd=200u", func(a Aids) bool {
+			return a.Targets.Gain == 20 && a.Targets.F3dB == 50e6 && a.Targets.IDD == 200e-6
+		}, "t.gain=20&t.f3db=50M&t.idd=200u"},
+		{"vary=id.w", func(a Aids) bool { return a.Vary == VarW|VarID }, "vary=w.id"},
+		{"vary=none", func(a Aids) bool { return a.Vary == 0 }, "vary=none"},
+		{"lo.w=2u&hi.w=50u", func(a Aids) bool { return a.Ranges.W == Range{2e-6, 50e-6} }, "lo.w=2u&hi.w=50u"},
+		// hi.w's default follows lo.w when lo.w is above it.
+		{"lo.w=300u", func(a Aids) bool { return a.Ranges.W == Range{300e-6, 1e-3} }, "lo.w=300u"},
+		{"sw=vin&sw.n=11", func(a Aids) bool { return a.Sweep == SweepSpec{"vin", 0, 1.8, 11} }, "sw=vin&sw.n=11"},
+		{"sw=n.vt0&sw.lo=0.3&sw.hi=0.6", func(a Aids) bool { return a.Sweep == SweepSpec{"n.vt0", 0.3, 0.6, 50} }, "sw=n.vt0&sw.lo=300m&sw.hi=600m"},
+	}
+	for _, g := range good {
+		d, err := Decode(g.fragment)
+		if err != nil {
+			t.Errorf("Decode(%q): %v", g.fragment, err)
+			continue
+		}
+		if !g.check(d.Aids) {
+			t.Errorf("Decode(%q).Aids = %+v", g.fragment, d.Aids)
+		}
+		if e := d.Encode(); !strings.Contains(e+"&", "&"+g.encoded+"&") {
+			t.Errorf("Encode(%q) = %s, want it to contain %s", g.fragment, e, g.encoded)
+		}
+	}
+	bad := []struct{ fragment, key, says string }{
+		{"corner=st", "corner", "tt, ss, ff, sf, fs"},
+		{"mc=10001", "mc", "between 0 and 10k"},
+		{"mc=1.5", "mc", "whole number"},
+		{"amp=2&vdd=1.2", "amp", "vdd = 1.2"},
+		{"t.gain=-1", "t.gain", "0 (no target)"},
+		{"vary=w.x", "vary", `"x" is not one`},
+		{"vary=w.w", "vary", "given twice"},
+		{"vary=", "vary", `"" is not one`},
+		{"lo.w=1u&hi.w=1u", "hi.w", "above lo.w"},
+		{"lo.rs=0", "lo.rs", "above 0"},
+		{"sw=fmax", "sw", "swept key must be one of"},
+		{"sw=w&sw.lo=1m", "sw.lo", "below 1m"},
+		{"pin=" + escapeValue("w=1u&pin=x"), "pin", "cannot pin another"},
+		{"pin=" + escapeValue("w=-1"), "pin", "pinned design: w=-1"},
+	}
+	for _, b := range bad {
+		d, err := Decode(b.fragment)
+		var fe *FragmentError
+		if !errors.As(err, &fe) {
+			t.Errorf("Decode(%q) = %v, want a FragmentError", b.fragment, err)
+			continue
+		}
+		p, ok := fe.Problem(b.key)
+		if !ok || !strings.Contains(p.Message, b.says) {
+			t.Errorf("Decode(%q): problem %+v, want one about %s saying %q (all: %v)", b.fragment, p, b.key, b.says, err)
+		}
+		if verr := d.Validate(); verr != nil {
+			t.Errorf("Decode(%q) returned a design failing Validate: %v", b.fragment, verr)
+		}
+	}
+
+	// A pinned design: decoded, written back percent-encoded, and equal
+	// after a round trip; its value may be longer than MaxValueChars.
+	inner := "v=1&stage=cg&pol=p&proc=d65&w=37u&rd=4.7k&t.gain=3"
+	d, err := Decode("w=20u&pin=" + escapeValue(inner))
+	if err != nil {
+		t.Fatal(err)
+	}
+	pin, _ := Decode(inner)
+	if d.Aids.Pin == nil || !reflect.DeepEqual(*d.Aids.Pin, pin) {
+		t.Fatalf("pin = %+v, want %+v", d.Aids.Pin, pin)
+	}
+	e := d.Encode()
+	if !strings.Contains(e, "&pin=v%3D1%26stage%3Dcg%26pol%3Dp%26proc%3Dd65") {
+		t.Errorf("Encode with a pin = %s", e)
+	}
+	if d2, err := Decode(e); err != nil || !reflect.DeepEqual(d2, d) {
+		t.Errorf("pin round trip: %v\n%+v\n%+v", err, d2, d)
+	}
+	// Validate catches a pin with a pin of its own.
+	bad2 := d
+	p2 := pin
+	p2.Aids.Pin = &pin
+	bad2.Aids.Pin = &p2
+	if err := bad2.Validate(); err == nil || !strings.Contains(err.Error(), "cannot pin another") {
+		t.Errorf("Validate of a pin with a pin = %v", err)
+	}
+}
+
+// TestCornerInProcess checks that corner takes effect in ProcessOf: at ss
+// both thresholds rise by CornerSigmas·SigmaVT and the mobilities fall by
+// the factor 1 − CornerSigmas·SigmaMu (the rule device.Corner documents),
+// and overrides are applied before the corner.
+func TestCornerInProcess(t *testing.T) {
+	tt, err := mustDecode(t, "n.vt0=0.5").ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ss, err := mustDecode(t, "n.vt0=0.5&corner=ss").ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	sn, sp := tt.Spread(device.NMOS), tt.Spread(device.PMOS)
+	// 1e-12: one addition and one multiplication of values near 1.
+	if got, want := ss.N.VT0, 0.5+device.CornerSigmas*sn.SigmaVT; math.Abs(got-want) > 1e-12 {
+		t.Errorf("ss NMOS VT0 = %g, want %g", got, want)
+	}
+	if got, want := ss.P.VT0, tt.P.VT0+device.CornerSigmas*sp.SigmaVT; math.Abs(got-want) > 1e-12 {
+		t.Errorf("ss PMOS VT0 = %g, want %g", got, want)
+	}
+	if got, want := ss.N.U0, tt.N.U0*(1-device.CornerSigmas*sn.SigmaMu); math.Abs(got-want) > 1e-12*want {
+		t.Errorf("ss NMOS U0 = %g, want %g", got, want)
+	}
+	var e Evaluator
+	fast, slow := e.Evaluate(mustDecode(t, "bias=vin&corner=ff")), e.Evaluate(mustDecode(t, "bias=vin&corner=ss"))
+	if !(fast.OK && slow.OK && fast.OP.ID > slow.OP.ID) {
+		t.Errorf("at a fixed input level the ff drain current %v should exceed the ss one %v", fast.OP.ID, slow.OP.ID)
 	}
 }

@@ -2,7 +2,10 @@ package design
 
 import (
 	"math"
+	"net/url"
+	"slices"
 	"strconv"
+	"strings"
 
 	"stagewright/core/device"
 )
@@ -15,6 +18,9 @@ const (
 	GroupSourceAndLoad = "source and load"
 	GroupProcess       = "process"
 	GroupSweep         = "sweep"
+	GroupAids          = "design aids"
+	GroupTargets       = "targets"
+	GroupSizing        = "sizing"
 )
 
 // MaxSweepPoints is the largest number of frequency points a design may ask
@@ -93,10 +99,26 @@ type keyDef struct {
 	zeroMeans string                            // what 0 means, when 0 is special (and accepted even below the span)
 	extra     func(d *Design, v float64) string // a further check; "" when fine
 
+	// Text keys (vary, pin): neither a number nor one word.
+	readText  func(d *Design, text string) string // applies text to d; "" or what is wrong
+	writeText func(d *Design) string              // the value as a fragment writes it
+	checkText func(d *Design) string              // Validate's check; "" when fine
+	defText   string                              // the default, as a fragment writes it
+	choices   []string                            // the parts a text key is made of (vary)
+	separator string                              // what joins the parts
+	accepts   string                              // what a text key accepts, in words
+	long      bool                                // the value may be up to MaxFragmentBytes long
+
+	// optional keys (the design aids) are written only when they differ
+	// from their defaults, so links made before they existed keep their
+	// form.
+	optional bool
+
 	setsProcess bool // later keys take their process limits from this one
 }
 
 func (k *keyDef) isWord() bool { return k.words != nil }
+func (k *keyDef) isText() bool { return k.readText != nil }
 
 // relevant reports whether the key matters for the stage, load and bias of d.
 func (k *keyDef) relevant(d *Design) bool {
@@ -440,6 +462,140 @@ var keyTable = [...]keyDef{
 		get: func(d *Design) float64 { return d.NoiseHi },
 		set: func(d *Design, v float64) { d.NoiseHi = v },
 	},
+	// The design aids. None of them changes the evaluation but corner.
+	{
+		name: "corner", group: GroupAids, label: "process corner",
+		doc: "Process corner of the evaluation: tt typical, ss, ff, sf, fs (first letter NMOS, second PMOS; s slow, f fast, " +
+			"3 global sigma of the demo spread).",
+		words: func(*Design) []string { return cornerWords }, defWord: "tt",
+		getWord:  func(d *Design) string { return d.Aids.Corner },
+		setWord:  func(d *Design, w string) { d.Aids.Corner = w },
+		optional: true,
+	},
+	{
+		name: "amp", group: GroupAids, label: "input amplitude", unit: "V",
+		doc:  "Amplitude of the input sine for the distortion figures, V.",
+		span: func(_ *device.Process, d *Design) span { return span{lo: 1e-6, hi: d.VDD, hiName: "vdd"} },
+		def:  constant(10e-3), log: true, optional: true,
+		get: func(d *Design) float64 { return d.Aids.Amp },
+		set: func(d *Design, v float64) { d.Aids.Amp = v },
+	},
+	{
+		name: "mc", group: GroupAids, label: "Monte Carlo samples",
+		doc:  "Number of Monte Carlo samples of the process spread and mismatch; 0 for none.",
+		span: fixed(0, 10000), def: constant(1000), integer: true, optional: true,
+		get: func(d *Design) float64 { return float64(d.Aids.MC) },
+		set: func(d *Design, v float64) { d.Aids.MC = int(v) },
+	},
+	{
+		name: "seed", group: GroupAids, label: "random seed",
+		doc:  "Seed of the random draws (Monte Carlo, sizing restarts); the same seed gives the same numbers.",
+		span: fixed(0, 1e9), def: constant(1), integer: true, optional: true,
+		get: func(d *Design) float64 { return float64(d.Aids.Seed) },
+		set: func(d *Design, v float64) { d.Aids.Seed = int(v) },
+	},
+	target("t.gain", "least gain", "V/V", "Sizing target: least magnitude of the midband gain, V/V.",
+		fixed(1e-3, 1e6), func(t *Targets) *float64 { return &t.Gain }),
+	target("t.f3db", "least bandwidth", "Hz", "Sizing target: least −3 dB bandwidth, Hz.",
+		fixed(1e-3, 1e12), func(t *Targets) *float64 { return &t.F3dB }),
+	target("t.gbw", "least gain–bandwidth", "Hz", "Sizing target: least gain–bandwidth product |gain|·f3db, Hz.",
+		fixed(1e-3, 1e13), func(t *Targets) *float64 { return &t.GBW }),
+	target("t.idd", "most supply current", "A", "Sizing target: most current drawn from the supply, A.",
+		fixed(1e-12, 1), func(t *Targets) *float64 { return &t.IDD }),
+	target("t.power", "most power", "W", "Sizing target: most power drawn from the supply, W.",
+		fixed(1e-12, 10), func(t *Targets) *float64 { return &t.Power }),
+	target("t.swing", "least output swing", "V", "Sizing target: least peak-to-peak output swing with M1 in saturation, V.",
+		func(_ *device.Process, d *Design) span { return span{lo: 1e-3, hi: d.VDD, hiName: "vdd"} },
+		func(t *Targets) *float64 { return &t.Swing }),
+	target("t.noise", "most input noise", "V", "Sizing target: most input-referred rms noise over nlo … nhi, V.",
+		fixed(1e-12, 1), func(t *Targets) *float64 { return &t.Noise }),
+	target("t.margin", "least saturation margin", "V", "Sizing target: least saturation margin |VDS| − VDsat of M1, V.",
+		func(_ *device.Process, d *Design) span { return span{lo: 1e-3, hi: d.VDD, hiName: "vdd"} },
+		func(t *Targets) *float64 { return &t.Margin }),
+	{
+		name: "vary", group: GroupSizing, label: "inputs sizing may move",
+		doc:      "Inputs sizing may move, joined by dots (w.l.id.rd.rs.vin, any subset in any order), or none; those that do not matter for the stage are left alone.",
+		readText: readVary, defText: "w.l.id.rd",
+		writeText: func(d *Design) string { return d.Aids.Vary.String() },
+		checkText: func(d *Design) string {
+			if d.Aids.Vary&^varAll != 0 {
+				return "inputs sizing may move: unknown bits in the set"
+			}
+			return ""
+		},
+		choices: append(append([]string(nil), varNames...), "none"), separator: ".",
+		accepts:  "any of w, l, id, rd, rs, vin joined by dots, or none",
+		optional: true,
+	},
+	sizingRange("lo.w", "least width", "m", "Sizing: least channel width of M1, m.", widthBounds, rangeLow(1e-6), widthWhen,
+		func(r *Ranges) *Range { return &r.W }, true),
+	sizingRange("hi.w", "most width", "m", "Sizing: most channel width of M1, m.", widthBounds, rangeHigh(200e-6), widthWhen,
+		func(r *Ranges) *Range { return &r.W }, false),
+	sizingRange("lo.l", "least length", "m", "Sizing: least channel length of M1, m.", lengthBounds, rangeLowFn(func(pr *device.Process) float64 { return pr.LMin }), nil,
+		func(r *Ranges) *Range { return &r.L }, true),
+	sizingRange("hi.l", "most length", "m", "Sizing: most channel length of M1, m (20 × the process minimum by default).", lengthBounds,
+		rangeHighFn(func(pr *device.Process) float64 { return 20 * pr.LMin }), nil,
+		func(r *Ranges) *Range { return &r.L }, false),
+	sizingRange("lo.id", "least drain current", "A", "Sizing: least drain current of M1, A.", fixedBounds(1e-9, 10e-3), rangeLow(1e-6),
+		[]Condition{{Biases: []string{string(BiasID), string(BiasGmID)}}}, func(r *Ranges) *Range { return &r.ID }, true),
+	sizingRange("hi.id", "most drain current", "A", "Sizing: most drain current of M1, A.", fixedBounds(1e-9, 10e-3), rangeHigh(1e-3),
+		[]Condition{{Biases: []string{string(BiasID), string(BiasGmID)}}}, func(r *Ranges) *Range { return &r.ID }, false),
+	sizingRange("lo.rd", "least drain resistor", "Ω", "Sizing: least drain resistor, Ω.", fixedBounds(1, 1e9), rangeLow(100), rdWhen,
+		func(r *Ranges) *Range { return &r.RD }, true),
+	sizingRange("hi.rd", "most drain resistor", "Ω", "Sizing: most drain resistor, Ω.", fixedBounds(1, 1e9), rangeHigh(1e6), rdWhen,
+		func(r *Ranges) *Range { return &r.RD }, false),
+	sizingRange("lo.rs", "least source resistor", "Ω", "Sizing: least source resistor, Ω (above 0: sizing moves it on a log scale).",
+		fixedBounds(0, 1e9), rangeLow(10), rsWhen, func(r *Ranges) *Range { return &r.RS }, true),
+	sizingRange("hi.rs", "most source resistor", "Ω", "Sizing: most source resistor, Ω.", fixedBounds(0, 1e9), rangeHigh(100e3), rsWhen,
+		func(r *Ranges) *Range { return &r.RS }, false),
+	{
+		name: "sw", group: GroupAids, label: "swept key",
+		doc:   "Input key a sweep moves: any number key of the design or a process parameter (n.vt0).",
+		words: func(*Design) []string { return sweepWords }, defWord: "w",
+		getWord:  func(d *Design) string { return d.Aids.Sweep.Key },
+		setWord:  func(d *Design, w string) { d.Aids.Sweep.Key = w },
+		optional: true,
+	},
+	{
+		name: "sw.lo", group: GroupAids, label: "sweep start",
+		doc: "Start of the sweep of the swept key, in its unit; its whole range by default.",
+		span: func(pr *device.Process, d *Design) span {
+			sp := sweepSpan(pr, d, d.Aids.Sweep.Key)
+			return span{lo: sp.lo, hi: sp.hi, loOpen: sp.loOpen, hiOpen: true, loName: sp.loName, hiName: sp.hiName}
+		},
+		def:      func(pr *device.Process, d *Design) float64 { return sweepSpan(pr, d, d.Aids.Sweep.Key).lo },
+		optional: true,
+		get:      func(d *Design) float64 { return d.Aids.Sweep.Lo },
+		set:      func(d *Design, v float64) { d.Aids.Sweep.Lo = v },
+	},
+	{
+		name: "sw.hi", group: GroupAids, label: "sweep stop",
+		doc: "End of the sweep of the swept key, in its unit.",
+		span: func(pr *device.Process, d *Design) span {
+			sp := sweepSpan(pr, d, d.Aids.Sweep.Key)
+			return span{lo: d.Aids.Sweep.Lo, hi: sp.hi, loOpen: true, loName: "sw.lo", hiName: sp.hiName}
+		},
+		def:      func(pr *device.Process, d *Design) float64 { return sweepSpan(pr, d, d.Aids.Sweep.Key).hi },
+		optional: true,
+		get:      func(d *Design) float64 { return d.Aids.Sweep.Hi },
+		set:      func(d *Design, v float64) { d.Aids.Sweep.Hi = v },
+	},
+	{
+		name: "sw.n", group: GroupAids, label: "sweep points",
+		doc:  "Number of points of the sweep of the swept key.",
+		span: fixed(2, 1000), def: constant(50), integer: true, optional: true,
+		get: func(d *Design) float64 { return float64(d.Aids.Sweep.N) },
+		set: func(d *Design, v float64) { d.Aids.Sweep.N = int(v) },
+	},
+	{
+		name: "pin", group: GroupAids, label: "pinned design",
+		doc: "A pinned reference design to compare with: its whole fragment, percent-encoded; empty for none.",
+		// readText, writeText and checkText are set in init: they call
+		// Decode, Encode and Validate, which read this table.
+		defText: "",
+		accepts: "a design fragment, percent-encoded, with no pin of its own; empty for none",
+		long:    true, optional: true,
+	},
 }
 
 // numKeys is the number of plain keys (overrides not counted).
@@ -519,9 +675,20 @@ var (
 	overrideKeys  []string // every override key, sorted: "n.bex" … "p.vt0"
 )
 
+// tableRows is keyTable, for the functions its own rows call (a row may
+// not name the table it is in).
+var tableRows []keyDef
+
 func init() {
+	tableRows = keyTable[:]
+	pin := &keyTable[len(keyTable)-1]
+	pin.readText, pin.writeText, pin.checkText = readPin, writePin, checkPin
 	for i := range keyTable {
-		keyIndex[keyTable[i].name] = i
+		k := &keyTable[i]
+		keyIndex[k.name] = i
+		if !k.isWord() && !k.isText() && !k.optional && !notSwept[k.name] && k.name != "v" {
+			sweepWords = append(sweepWords, k.name)
+		}
 	}
 	for _, pol := range []byte{'n', 'p'} {
 		for i := range overrideParams {
@@ -530,6 +697,7 @@ func init() {
 			overrideKeys = append(overrideKeys, key)
 		}
 	}
+	sweepWords = append(sweepWords, overrideKeys...)
 }
 
 // lookupOverride returns the field an override key names.
@@ -575,4 +743,248 @@ func sweepPoints(fmin, fmax, ppd float64) int {
 
 func clamp(v, lo, hi float64) float64 {
 	return math.Max(lo, math.Min(v, hi))
+}
+
+// The design aids' words and relevance conditions.
+var (
+	cornerWords = device.CornerNames()
+	// sweepWords are the keys a sweep may move, set in init: every number
+	// key of the design above the aids but the frequency sweep's own, then
+	// every override.
+	sweepWords []string
+	widthWhen  = []Condition{{Biases: []string{string(BiasVin), string(BiasID)}}}
+	rdWhen     = []Condition{{Stages: []string{string(CommonSource), string(CommonGate)}, Loads: []string{string(LoadResistor)}}}
+	rsWhen     = []Condition{
+		{Stages: []string{string(CommonSource)}},
+		{Stages: []string{string(SourceFollower)}, Loads: []string{string(LoadResistor)}},
+	}
+)
+
+// notSwept are number keys a sweep may not move: the frequency sweep's own.
+var notSwept = map[string]bool{"fmin": true, "fmax": true, "ppd": true, "nlo": true, "nhi": true}
+
+// target is the row of a sizing target: 0 means no target, any other
+// value must lie in the span.
+func target(name, label, unit, doc string, sp func(*device.Process, *Design) span, field func(*Targets) *float64) keyDef {
+	return keyDef{
+		name: name, group: GroupTargets, label: label, unit: unit, doc: doc,
+		span: func(pr *device.Process, d *Design) span {
+			s := sp(pr, d)
+			s.zeroOK = true
+			return s
+		},
+		def: constant(0), log: true, zeroMeans: "no target", optional: true,
+		get: func(d *Design) float64 { return *field(&d.Aids.Targets) },
+		set: func(d *Design, v float64) { *field(&d.Aids.Targets) = v },
+	}
+}
+
+// bounds gives the interval a sizing range must lie in.
+type bounds func(pr *device.Process) (lo, hi float64)
+
+func widthBounds(pr *device.Process) (float64, float64)  { return pr.WMin, pr.WMax }
+func lengthBounds(pr *device.Process) (float64, float64) { return pr.LMin, pr.LMax }
+func fixedBounds(lo, hi float64) bounds {
+	return func(*device.Process) (float64, float64) { return lo, hi }
+}
+
+// rangeDefault is the default of one end of a sizing range, given the
+// bounds and, for the upper end, the lower end already resolved.
+type rangeDefault func(pr *device.Process, lo, hi, low float64) float64
+
+// rangeLow prefers v, kept inside [lo, hi).
+func rangeLow(v float64) rangeDefault {
+	return rangeLowFn(func(*device.Process) float64 { return v })
+}
+
+func rangeLowFn(v func(*device.Process) float64) rangeDefault {
+	return func(pr *device.Process, lo, hi, _ float64) float64 {
+		if x := clamp(v(pr), lo, hi); x < hi && x > 0 {
+			return x
+		}
+		return lo
+	}
+}
+
+// rangeHigh prefers v when it lies above the lower end, else the bound hi.
+func rangeHigh(v float64) rangeDefault {
+	return rangeHighFn(func(*device.Process) float64 { return v })
+}
+
+func rangeHighFn(v func(*device.Process) float64) rangeDefault {
+	return func(pr *device.Process, _, hi, low float64) float64 {
+		if x := v(pr); x > low && x <= hi {
+			return x
+		}
+		return hi
+	}
+}
+
+// sizingRange is the row of one end of a sizing range. The lower end lies
+// in [lo, hi) of the bounds (above 0 when lo is 0: sizing moves it on a log
+// scale); the upper end lies above the lower end, up to hi.
+func sizingRange(name, label, unit, doc string, b bounds, def rangeDefault, when []Condition,
+	field func(*Ranges) *Range, isLow bool) keyDef {
+	k := keyDef{
+		name: name, group: GroupSizing, label: label, unit: unit, doc: doc, when: when,
+		log: true, optional: true,
+	}
+	if isLow {
+		k.span = func(pr *device.Process, _ *Design) span {
+			lo, hi := b(pr)
+			return span{lo: lo, hi: hi, loOpen: lo == 0, hiOpen: true}
+		}
+		k.def = func(pr *device.Process, d *Design) float64 { lo, hi := b(pr); return def(pr, lo, hi, 0) }
+		k.get = func(d *Design) float64 { return field(&d.Aids.Ranges).Lo }
+		k.set = func(d *Design, v float64) { field(&d.Aids.Ranges).Lo = v }
+		return k
+	}
+	loName := "lo." + name[len("hi."):]
+	k.span = func(pr *device.Process, d *Design) span {
+		_, hi := b(pr)
+		return span{lo: field(&d.Aids.Ranges).Lo, hi: hi, loOpen: true, loName: loName}
+	}
+	k.def = func(pr *device.Process, d *Design) float64 {
+		lo, hi := b(pr)
+		return def(pr, lo, hi, field(&d.Aids.Ranges).Lo)
+	}
+	k.get = func(d *Design) float64 { return field(&d.Aids.Ranges).Hi }
+	k.set = func(d *Design, v float64) { field(&d.Aids.Ranges).Hi = v }
+	return k
+}
+
+// sweepSpan is the interval a sweep of key may cover in the context of d:
+// the key's own span, without its special 0; a logarithmic key whose span
+// starts at 0 starts at 1e-6 of its top instead.
+func sweepSpan(pr *device.Process, d *Design, key string) span {
+	var sp span
+	var log bool
+	if i, ok := keyIndex[key]; ok && !tableRows[i].isWord() && !tableRows[i].isText() {
+		sp, log = tableRows[i].span(pr, d), tableRows[i].log
+	} else if f, _, ok := lookupOverride(key); ok {
+		sp, log = f.span(), f.log
+	} else {
+		return span{lo: 0, hi: 1}
+	}
+	sp.zeroOK, sp.note = false, ""
+	if log && sp.lo <= 0 {
+		sp.lo, sp.loOpen, sp.loName = sp.hi*1e-6, false, ""
+	}
+	return sp
+}
+
+// KeyRange returns the closed interval a number key or process-parameter
+// override accepts for d (bounds that follow other keys take their values
+// in d; an exclusive bound is returned as it is), whether a slider for it
+// is logarithmic, and false for a key that is not a number key. A
+// logarithmic key whose range starts at 0 starts at 1e-6 of its top, as a
+// sweep's does.
+func (d Design) KeyRange(key string) (lo, hi float64, log, ok bool) {
+	pr := lookupProcess(d.Process)
+	if i, found := keyIndex[key]; found && !keyTable[i].isWord() && !keyTable[i].isText() {
+		log = keyTable[i].log
+	} else if f, _, found := lookupOverride(key); found {
+		log = f.log
+	} else {
+		return 0, 0, false, false
+	}
+	sp := sweepSpan(pr, &d, key)
+	return sp.lo, sp.hi, log, true
+}
+
+// readVary reads the inputs sizing may move.
+func readVary(d *Design, text string) string {
+	const accepted = "inputs sizing may move must be any of w, l, id, rd, rs, vin joined by dots, or none"
+	if text == "none" {
+		d.Aids.Vary = 0
+		return ""
+	}
+	var set VarSet
+	rest := text
+	for {
+		var part string
+		var more bool
+		part, rest, more = strings.Cut(rest, ".")
+		i := slices.Index(varNames, part)
+		switch {
+		case i < 0:
+			return accepted + " (" + strconv.Quote(part) + " is not one)"
+		case set&(1<<i) != 0:
+			return accepted + " (" + part + " is given twice)"
+		}
+		set |= 1 << i
+		if !more {
+			break
+		}
+	}
+	d.Aids.Vary = set
+	return ""
+}
+
+// readPin reads a pinned design: a whole fragment, already percent-decoded
+// once, with no pin of its own.
+func readPin(d *Design, text string) string {
+	if text == "" {
+		d.Aids.Pin = nil
+		return ""
+	}
+	if hasPin(text) {
+		return "a pinned design cannot pin another design (remove pin from the pinned fragment)"
+	}
+	pin, err := Decode(text)
+	if err != nil {
+		return "pinned design: " + err.Error()
+	}
+	d.Aids.Pin = &pin
+	return ""
+}
+
+// hasPin reports whether a fragment has a pair with the key pin.
+func hasPin(fragment string) bool {
+	for rest := strings.TrimPrefix(fragment, "#"); rest != ""; {
+		var pair string
+		pair, rest, _ = strings.Cut(rest, "&")
+		key, _, _ := strings.Cut(pair, "=")
+		if k, err := url.PathUnescape(key); err == nil && k == "pin" {
+			return true
+		}
+	}
+	return false
+}
+
+func writePin(d *Design) string {
+	if d.Aids.Pin == nil {
+		return ""
+	}
+	return escapeValue(d.Aids.Pin.Encode())
+}
+
+func checkPin(d *Design) string {
+	p := d.Aids.Pin
+	switch {
+	case p == nil:
+		return ""
+	case p.Aids.Pin != nil:
+		return "a pinned design cannot pin another design"
+	}
+	if err := p.Validate(); err != nil {
+		return "pinned design: " + err.Error()
+	}
+	return ""
+}
+
+// escapeValue percent-encodes s for a fragment value: every byte but
+// letters, digits and . _ ~ - becomes %XX.
+func escapeValue(s string) string {
+	const hex = "0123456789ABCDEF"
+	b := make([]byte, 0, len(s)*2)
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		if 'a' <= c && c <= 'z' || 'A' <= c && c <= 'Z' || '0' <= c && c <= '9' || c == '.' || c == '_' || c == '~' || c == '-' {
+			b = append(b, c)
+			continue
+		}
+		b = append(b, '%', hex[c>>4], hex[c&15])
+	}
+	return string(b)
 }

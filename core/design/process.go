@@ -33,7 +33,9 @@ var overrideField = map[string]func(*device.Params) *float64{
 	"kf":    func(p *device.Params) *float64 { return &p.KF },
 }
 
-// ProcessOf returns the design's process with its overrides applied.
+// ProcessOf returns the design's process with its overrides applied and
+// then moved to the design's corner (Aids.Corner; "" means tt): the
+// overrides describe the typical device, the corner skews it.
 func (d Design) ProcessOf() (device.Process, error) {
 	pr, ok := device.Builtin(d.Process)
 	if !ok {
@@ -49,6 +51,12 @@ func (d Design) ProcessOf() (device.Process, error) {
 			*field(&pr.N) = o.Value
 		} else {
 			*field(&pr.P) = o.Value
+		}
+	}
+	if c := d.Aids.Corner; c != "" && c != "tt" {
+		var err error
+		if pr, err = device.Corner(pr, c); err != nil {
+			return pr, fmt.Errorf("corner: %w", err)
 		}
 	}
 	if err := pr.N.Validate(); err != nil {

@@ -41,8 +41,14 @@ type KeyInfo struct {
 	ZeroMeans string `json:"zero_means,omitempty"`
 
 	// Choices are the words a word key accepts, or the words a number key
-	// accepts besides numbers (rl: "inf").
-	Choices []string `json:"choices,omitempty"`
+	// accepts besides numbers (rl: "inf"), or the parts a text key is
+	// made of, joined by Separator (vary: "w.l.id").
+	Choices   []string `json:"choices,omitempty"`
+	Separator string   `json:"separator,omitempty"`
+	// Text says a key is neither a number nor one word (vary, pin); Accepts
+	// then says in words what it takes.
+	Text    bool   `json:"text,omitempty"`
+	Accepts string `json:"accepts,omitempty"`
 
 	// Stages, Loads and Biases say where the key matters (empty: always):
 	// the union over When. When is the exact rule: the key matters when any
@@ -71,10 +77,14 @@ func Schema(proc string) []KeyInfo {
 			info.When = k.when
 			info.Stages, info.Loads, info.Biases = union(k.when)
 		}
-		if k.isWord() {
+		switch {
+		case k.isText():
+			info.Text, info.Accepts, info.DefaultWord = true, k.accepts, k.defText
+			info.Choices, info.Separator = append([]string(nil), k.choices...), k.separator
+		case k.isWord():
 			info.DefaultWord = k.defWord
 			info.Choices = append([]string(nil), k.words(&d)...)
-		} else {
+		default:
 			// Spans and defaults read only the keys before them, which in the
 			// default design hold their defaults.
 			sp := k.span(pr, &d)
@@ -154,6 +164,9 @@ func KeyTableMarkdown() string {
 
 func defaultText(k KeyInfo) string {
 	text := k.DefaultWord
+	if k.Text && text == "" {
+		return "none"
+	}
 	if text == "" {
 		text = units.Exact(k.Default)
 	}
@@ -166,6 +179,9 @@ func defaultText(k KeyInfo) string {
 }
 
 func acceptedText(k KeyInfo) string {
+	if k.Text {
+		return k.Accepts
+	}
 	if k.Unit == "" && k.Min == 0 && k.Max == 0 && len(k.Choices) > 0 {
 		return strings.Join(k.Choices, ", ")
 	}
