@@ -1,17 +1,36 @@
 # Stagewright build. `make run` serves the page, `make test` runs every test.
 GO ?= go
 
-.PHONY: test test-go vet fmt-check run site bench fuzz
+.PHONY: test test-go vet fmt-check run site bench fuzz random-full
 
 test: fmt-check vet test-go test-web
 
 test-go:
-	$(GO) test ./core/...
+	$(GO) test ./core/... ./bench
 
 vet:
-	$(GO) vet ./core/...
+	$(GO) vet ./core/... ./bench
 
 fmt-check:
 	@out=$$(gofmt -l core wasm 2>/dev/null); if [ -n "$$out" ]; then echo "gofmt would change: $$out"; exit 1; fi
+
+# Benchmarks: native and js/wasm engine, and the browser figures when the
+# browser benchmark has written site/dist/bench.json; one table with budgets.
+bench:
+	$(GO) run ./bench
+
+# Each fuzz target for FUZZTIME (go test -fuzz takes one target at a time).
+FUZZTIME ?= 30s
+FUZZ_TARGETS = ./core/units:FuzzParse ./core/units:FuzzExact ./core/design:FuzzDecode ./core/design:FuzzEvaluate
+
+fuzz:
+	@set -e; for t in $(FUZZ_TARGETS); do \
+		echo "fuzz $${t#*:} in $${t%%:*} for $(FUZZTIME)"; \
+		$(GO) test -run '^$$' -fuzz "^$${t#*:}$$" -fuzztime $(FUZZTIME) $${t%%:*}; \
+	done
+
+# The full random-design run (100,000 designs); make test runs 10,000.
+random-full:
+	STAGEWRIGHT_RANDOM_FULL=1 $(GO) test -count=1 -timeout 30m -run '^TestRandomDesignsFull$$' -v ./core/design
 
 include web.mk
