@@ -12,7 +12,7 @@ vet:
 	$(GO) vet ./core/... ./bench
 
 fmt-check:
-	@out=$$(gofmt -l core wasm 2>/dev/null); if [ -n "$$out" ]; then echo "gofmt would change: $$out"; exit 1; fi
+	@out=$$(gofmt -l core wasm bench 2>/dev/null); if [ -n "$$out" ]; then echo "gofmt would change: $$out"; exit 1; fi
 
 # Benchmarks: native and js/wasm engine, and the browser figures when the
 # browser benchmark has written site/dist/bench.json; one table with budgets.

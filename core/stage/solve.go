@@ -103,6 +103,9 @@ func solveOnce(spec Spec, warm []float64) (*Solution, error) {
 	if err != nil {
 		var nc *circuit.NoConvergenceError
 		if errors.As(err, &nc) {
+			if msg, key, ok := diagnose(spec); ok {
+				return nil, &Error{Key: key, Message: msg}
+			}
 			return nil, &Error{Key: biasKey(spec), Message: "no operating point: " + explainFailure(spec) + " (" + nc.Error() + ")"}
 		}
 		return nil, err
@@ -113,6 +116,50 @@ func solveOnce(spec Spec, warm []float64) (*Solution, error) {
 	}
 	sol.warn()
 	return sol, nil
+}
+
+// diagnose explains why a bias by current found no solution, in the
+// user's terms: it solves the stage with every bias voltage at the rail
+// that drives the most current and compares that current with the target.
+func diagnose(s Spec) (msg, key string, ok bool) {
+	if s.Bias == ByVin {
+		return "", "", false
+	}
+	p := s
+	p.Bias = ByVin
+	high := s.Kind != CG // the gate of cs/sf high, the source of a cg low (NMOS)
+	if s.Pol == device.PMOS {
+		high = !high
+	}
+	p.Vin = 0
+	if high {
+		p.Vin = s.VDD
+	}
+	p.LoadVB = s.VDD
+	b, err := Build(p)
+	if err != nil {
+		return "", "", false
+	}
+	op, err := b.C.SolveDC(b.Guess, circuit.Options{})
+	if err != nil {
+		return "", "", false
+	}
+	v := op.V
+	m := b.C.FETs[b.M1]
+	most := m.Dev.Report(v[m.D], v[m.G], v[m.S], v[m.B]).ID
+	if most < s.ID {
+		who, key := "M1", "id"
+		if s.Kind == SF && s.Load == Active {
+			who = "the current sink M2 (with M1)"
+		}
+		return fmt.Sprintf("no operating point: %s can carry at most %s in this %s stage with its bias at the supply rail, less than the %s asked; make W/L larger or the current smaller",
+			who, eng(most, "A"), s.Kind, eng(s.ID, "A")), key, true
+	}
+	if s.Load == Active && s.Kind != SF {
+		return fmt.Sprintf("no operating point: M1 and its current-source load cannot both carry %s with the output held at %s; move vout or resize the load (lw, ll)",
+			eng(s.ID, "A"), eng(s.VOut, "V")), "vout", true
+	}
+	return "", "", false
 }
 
 func biasKey(s Spec) string {
