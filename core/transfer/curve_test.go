@@ -89,7 +89,6 @@ func TestCurveKCL(t *testing.T) {
 	}
 }
 
-
 // TestCurveGain: the gain at the operating point equals Evaluate's midband
 // gain (the same linearization, at an operating point re-solved in the
 // frozen circuit: the solver's 1e-9 tolerance moves it far less than

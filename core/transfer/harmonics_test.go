@@ -14,7 +14,7 @@ import (
 // A2 = |a2|·A²/2, A3 = |a3|·A³/4 and no higher harmonics (common practice).
 func TestHarmonicsPolynomial(t *testing.T) {
 	cases := []struct {
-		name           string
+		name            string
 		a1, a2, a3, amp float64
 	}{
 		{"inverting cs-like", -10, -25, 3, 0.01},
