@@ -1,0 +1,460 @@
+package sizing
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"strconv"
+	"strings"
+
+	"stagewright/core/design"
+)
+
+// Search budget.
+const (
+	MaxEvaluations = 3000 // evaluations of one Size call, at most
+	samples        = 240  // Latin-hypercube points of the first stage
+	restarts       = 4    // Nelder–Mead runs from the best distinct points
+	aim            = 0.02 // the search aims 2 % beyond each target (log margin), so rounding does not miss it
+	bindWithin     = 0.02 // a met target binds when its margin is at most 2 %
+)
+
+// ErrCancelled is returned when progress asked Size to stop; the Sizing
+// returned with it holds the best design found so far.
+var ErrCancelled = errors.New("sizing: cancelled")
+
+// Sizing is what Size found.
+type Sizing struct {
+	// Feasible says every target is met at Design.
+	Feasible bool   `json:"feasible"`
+	Message  string `json:"message"`
+	// Design is the found design (the best compromise when infeasible),
+	// Fragment its canonical fragment.
+	Design   design.Design `json:"-"`
+	Fragment string        `json:"fragment"`
+	Targets  []Target      `json:"targets"`
+	Vars     []Var         `json:"variables"`
+	Ignored  []string      `json:"ignored,omitempty"` // vary entries that do not matter for this stage and bias
+	// Missed are the targets still missed at the best point; Conflicts the
+	// pairs of targets that traded against each other along the search.
+	Missed      []string   `json:"missed,omitempty"`
+	Conflicts   []Conflict `json:"conflicts,omitempty"`
+	Evaluations int        `json:"evaluations"`
+	Cancelled   bool       `json:"cancelled,omitempty"`
+}
+
+// Target is one target at the found design.
+type Target struct {
+	Key    string     `json:"key"`  // t.gain …
+	Name   string     `json:"name"` // gain …
+	Unit   string     `json:"unit"`
+	Kind   string     `json:"kind"` // "min" (at least) or "max" (at most)
+	Target design.Num `json:"target"`
+	Value  design.Num `json:"value"`
+	// Margin is the relative margin: (value − target)/target for a min
+	// target, (target − value)/target for a max; negative when missed.
+	Margin design.Num `json:"margin"`
+	Met    bool       `json:"met"`
+	Binds  bool       `json:"binds"` // met within 2 %
+}
+
+// Var is one input the search moved.
+type Var struct {
+	Key   string     `json:"key"`
+	Lo    design.Num `json:"lo"`
+	Hi    design.Num `json:"hi"`
+	Start design.Num `json:"start"`
+	Value design.Num `json:"value"`
+	Log   bool       `json:"log"`
+}
+
+// Conflict is a pair of targets whose margins moved against each other
+// over the evaluated designs (Spearman rank correlation below −0.3).
+type Conflict struct {
+	A, B        string     `json:"-"`
+	Pair        [2]string  `json:"pair"`
+	Correlation design.Num `json:"correlation"`
+}
+
+// variable is one input the search moves, in the unit cube coordinate u.
+type variable struct {
+	key    string
+	lo, hi float64
+	log    bool
+	set    func(d *design.Design, v float64)
+	get    func(d *design.Design) float64
+}
+
+func (v *variable) value(u float64) float64 {
+	u = math.Max(0, math.Min(1, u))
+	if v.log {
+		return math.Exp(math.Log(v.lo) + u*(math.Log(v.hi)-math.Log(v.lo)))
+	}
+	return v.lo + u*(v.hi-v.lo)
+}
+
+func (v *variable) coord(x float64) float64 {
+	if v.log {
+		if x <= 0 {
+			return 0
+		}
+		return math.Max(0, math.Min(1, (math.Log(x)-math.Log(v.lo))/(math.Log(v.hi)-math.Log(v.lo))))
+	}
+	return math.Max(0, math.Min(1, (x-v.lo)/(v.hi-v.lo)))
+}
+
+// variables lists the inputs d.Aids.Vary names that matter for d, and
+// those that do not.
+func variables(d *design.Design) ([]variable, []string) {
+	r := d.Aids.Ranges
+	all := []variable{
+		{key: "w", lo: r.W.Lo, hi: r.W.Hi, log: true, set: func(d *design.Design, v float64) { d.W = v }, get: func(d *design.Design) float64 { return d.W }},
+		{key: "l", lo: r.L.Lo, hi: r.L.Hi, log: true, set: func(d *design.Design, v float64) { d.L = v }, get: func(d *design.Design) float64 { return d.L }},
+		{key: "id", lo: r.ID.Lo, hi: r.ID.Hi, log: true, set: func(d *design.Design, v float64) { d.ID = v }, get: func(d *design.Design) float64 { return d.ID }},
+		{key: "rd", lo: r.RD.Lo, hi: r.RD.Hi, log: true, set: func(d *design.Design, v float64) { d.RD = v }, get: func(d *design.Design) float64 { return d.RD }},
+		{key: "rs", lo: r.RS.Lo, hi: r.RS.Hi, log: true, set: func(d *design.Design, v float64) { d.RS = v }, get: func(d *design.Design) float64 { return d.RS }},
+		{key: "vin", lo: 0, hi: d.VDD, set: func(d *design.Design, v float64) { d.Vin = v }, get: func(d *design.Design) float64 { return d.Vin }},
+	}
+	var vars []variable
+	var ignored []string
+	for _, v := range all {
+		if !d.Aids.Vary.Has(v.key) {
+			continue
+		}
+		if !d.Relevant(v.key) || !(v.hi > v.lo) {
+			ignored = append(ignored, v.key)
+			continue
+		}
+		vars = append(vars, v)
+	}
+	return vars, ignored
+}
+
+// point is one evaluated design.
+type point struct {
+	u       []float64
+	penalty float64
+	scores  []float64 // per goal; nil when the design could not be evaluated
+}
+
+// searcher holds the state of one Size call.
+type searcher struct {
+	base     design.Design
+	vars     []variable
+	goals    []goal
+	eval     design.Evaluator
+	progress func(done, total int) bool
+	points   []point
+	best     int // index into points; -1 before the first
+	stopped  bool
+}
+
+// Size searches for a design meeting the targets of d.Aids.Targets by
+// moving the inputs d.Aids.Vary names inside d.Aids.Ranges, starting from
+// d. progress, when not nil, is called after every evaluation with the
+// number done and the budget; returning false stops the search, and Size
+// then returns the best design so far with ErrCancelled. The same d always
+// gives the same Sizing.
+//
+// Errors: a design that fails Validate, no target set, or no input to move.
+// An infeasible set of targets is not an error: Sizing.Feasible is false and
+// Sizing.Missed and Sizing.Conflicts say why.
+func Size(d design.Design, progress func(done, total int) bool) (Sizing, error) {
+	if err := d.Validate(); err != nil {
+		return Sizing{}, fmt.Errorf("sizing: the design is not valid: %w", err)
+	}
+	gs := goals(&d)
+	if len(gs) == 0 {
+		return Sizing{}, errors.New("sizing: no target is set (give at least one of t.gain, t.f3db, t.gbw, t.idd, t.power, t.swing, t.noise, t.margin)")
+	}
+	vars, ignored := variables(&d)
+	if len(vars) == 0 {
+		return Sizing{}, fmt.Errorf("sizing: nothing to move: vary=%s names no input that matters for stage %s with load %s and bias %s",
+			d.Aids.Vary, d.Stage, d.Load, d.Bias)
+	}
+	s := &searcher{base: d, vars: vars, goals: gs, progress: progress, best: -1}
+	s.base.Aids.Pin = nil // the pin plays no part and is put back at the end
+	s.run()
+
+	out := s.report(ignored)
+	out.Design.Aids.Pin = d.Aids.Pin
+	out.Fragment = out.Design.Encode()
+	if s.stopped {
+		out.Cancelled = true
+		return out, ErrCancelled
+	}
+	return out, nil
+}
+
+// run is the search: the start, a Latin hypercube, then Nelder–Mead.
+func (s *searcher) run() {
+	k := len(s.vars)
+	start := make([]float64, k)
+	for i := range s.vars {
+		start[i] = s.vars[i].coord(s.vars[i].get(&s.base))
+	}
+	s.evaluate(start)
+
+	// Latin hypercube: each variable's [0, 1] cut into strata, one point
+	// per stratum, the strata of the variables paired by a seeded shuffle.
+	rng := rand.New(rand.NewPCG(uint64(s.base.Aids.Seed), 0x5eed))
+	perms := make([][]int, k)
+	for i := range perms {
+		perms[i] = rng.Perm(samples)
+	}
+	for j := 0; j < samples && !s.done(); j++ {
+		u := make([]float64, k)
+		for i := range u {
+			u[i] = (float64(perms[i][j]) + rng.Float64()) / samples
+		}
+		s.evaluate(u)
+	}
+
+	// Nelder–Mead from the best distinct points.
+	order := make([]int, len(s.points))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int { return cmpFloat(s.points[a].penalty, s.points[b].penalty) })
+	var starts [][]float64
+	for _, i := range order {
+		if len(starts) == restarts {
+			break
+		}
+		far := true
+		for _, u := range starts {
+			if dist(u, s.points[i].u) < 0.15 {
+				far = false
+			}
+		}
+		if far && s.points[i].scores != nil {
+			starts = append(starts, s.points[i].u)
+		}
+	}
+	for r, u0 := range starts {
+		if s.done() {
+			break
+		}
+		left := MaxEvaluations - len(s.points)
+		budget := left / (len(starts) - r)
+		s.minimize(u0, budget)
+	}
+}
+
+// done says the search should stop: the budget is spent, progress asked to
+// stop, or every target is met with the margin aimed for.
+func (s *searcher) done() bool {
+	return s.stopped || len(s.points) >= MaxEvaluations || (s.best >= 0 && s.points[s.best].penalty == 0)
+}
+
+func (s *searcher) minimize(u0 []float64, budget int) {
+	if budget < 2*len(s.vars)+2 {
+		return
+	}
+	f := func(x []float64) float64 {
+		if s.done() {
+			return s.points[s.best].penalty + 1 // the run is being stopped
+		}
+		return s.points[s.evaluate(x)].penalty
+	}
+	nelderMead(f, slices.Clone(u0), 0.08, budget, 1e-6, s.done)
+}
+
+// evaluate scores the design at u (coordinates outside [0, 1] are clamped
+// and penalised) and returns its index in s.points.
+func (s *searcher) evaluate(u []float64) int {
+	d := s.base
+	outside := 0.0
+	for i := range s.vars {
+		if e := math.Max(0, math.Max(-u[i], u[i]-1)); e > 0 {
+			outside += e * e
+		}
+		s.vars[i].set(&d, s.vars[i].value(u[i]))
+	}
+	p := point{u: slices.Clone(u), penalty: 1e3 + outside}
+	if err := d.Validate(); err == nil {
+		r := s.eval.Evaluate(d)
+		if r.OK {
+			p.scores = make([]float64, len(s.goals))
+			p.penalty = 10 * outside
+			for i := range s.goals {
+				sc := s.goals[i].score(s.goals[i].value(&d, &r))
+				p.scores[i] = sc
+				if short := aim - sc; short > 0 {
+					p.penalty += short * short
+				}
+			}
+		}
+	}
+	s.points = append(s.points, p)
+	idx := len(s.points) - 1
+	if s.best < 0 || p.penalty < s.points[s.best].penalty {
+		s.best = idx
+	}
+	if s.progress != nil && !s.stopped && !s.progress(len(s.points), MaxEvaluations) {
+		s.stopped = true
+	}
+	return idx
+}
+
+// report evaluates the best point again and describes it.
+func (s *searcher) report(ignored []string) Sizing {
+	best := s.points[s.best]
+	d := s.base
+	out := Sizing{Ignored: ignored, Evaluations: len(s.points)}
+	for i := range s.vars {
+		v := &s.vars[i]
+		// Four significant digits keep the fragment short; the search aims
+		// 2 % beyond each target, far more than the rounding moves it.
+		x := math.Max(v.lo, math.Min(v.hi, round4(v.value(best.u[i]))))
+		v.set(&d, x)
+		out.Vars = append(out.Vars, Var{Key: v.key, Lo: design.Num(v.lo), Hi: design.Num(v.hi),
+			Start: design.Num(v.get(&s.base)), Value: design.Num(x), Log: v.log})
+	}
+	out.Design = d
+	r := s.eval.Evaluate(d)
+	out.Feasible = r.OK
+	for i := range s.goals {
+		g := &s.goals[i]
+		value := math.NaN()
+		if r.OK {
+			value = g.value(&d, &r)
+		}
+		m := g.margin(value)
+		t := Target{Key: g.key, Name: g.name, Unit: g.unit, Kind: "max", Target: design.Num(g.target),
+			Value: design.Num(value), Margin: design.Num(m), Met: m >= 0}
+		if g.atLeast {
+			t.Kind = "min"
+		}
+		t.Binds = t.Met && m <= bindWithin
+		if !t.Met {
+			out.Feasible = false
+			out.Missed = append(out.Missed, g.key)
+		}
+		out.Targets = append(out.Targets, t)
+	}
+	switch {
+	case !r.OK:
+		out.Message = "no design meets every target: the best point found has no operating point"
+	case out.Feasible:
+		out.Message = "every target met"
+	default:
+		out.Message = "no design meets every target; the best compromise misses " + strings.Join(out.Missed, ", ")
+		out.Conflicts = s.conflicts(out.Missed)
+	}
+	return out
+}
+
+// conflicts returns the pairs of targets, one of them missed at the best
+// point, whose scores are rank-correlated below −0.3 over the evaluated
+// designs: improving one worsened the other along the search.
+func (s *searcher) conflicts(missed []string) []Conflict {
+	var rows [][]float64
+	for _, p := range s.points {
+		if p.scores != nil {
+			rows = append(rows, p.scores)
+		}
+	}
+	if len(rows) < 10 {
+		return nil
+	}
+	ranks := make([][]float64, len(s.goals))
+	for i := range s.goals {
+		col := make([]float64, len(rows))
+		for j, r := range rows {
+			col[j] = r[i]
+		}
+		ranks[i] = rank(col)
+	}
+	var out []Conflict
+	for i := range s.goals {
+		for j := i + 1; j < len(s.goals); j++ {
+			if !slices.Contains(missed, s.goals[i].key) && !slices.Contains(missed, s.goals[j].key) {
+				continue
+			}
+			if c := pearson(ranks[i], ranks[j]); c < -0.3 {
+				a, b := s.goals[i].key, s.goals[j].key
+				out = append(out, Conflict{A: a, B: b, Pair: [2]string{a, b}, Correlation: design.Num(c)})
+			}
+		}
+	}
+	return out
+}
+
+// rank returns the ranks of x (ties share their mean rank).
+func rank(x []float64) []float64 {
+	idx := make([]int, len(x))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortStableFunc(idx, func(a, b int) int { return cmpFloat(x[a], x[b]) })
+	r := make([]float64, len(x))
+	for i := 0; i < len(idx); {
+		j := i
+		for j+1 < len(idx) && x[idx[j+1]] == x[idx[i]] {
+			j++
+		}
+		for k := i; k <= j; k++ {
+			r[idx[k]] = float64(i+j) / 2
+		}
+		i = j + 1
+	}
+	return r
+}
+
+// pearson is the correlation coefficient of a and b; 0 when either is
+// constant.
+func pearson(a, b []float64) float64 {
+	n := float64(len(a))
+	var ma, mb float64
+	for i := range a {
+		ma += a[i]
+		mb += b[i]
+	}
+	ma, mb = ma/n, mb/n
+	var sab, saa, sbb float64
+	for i := range a {
+		sab += (a[i] - ma) * (b[i] - mb)
+		saa += (a[i] - ma) * (a[i] - ma)
+		sbb += (b[i] - mb) * (b[i] - mb)
+	}
+	if saa == 0 || sbb == 0 {
+		return 0
+	}
+	return sab / math.Sqrt(saa*sbb)
+}
+
+func dist(a, b []float64) float64 {
+	var s float64
+	for i := range a {
+		s += (a[i] - b[i]) * (a[i] - b[i])
+	}
+	return math.Sqrt(s)
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// round4 rounds x to four significant digits.
+func round4(x float64) float64 {
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return x
+	}
+	p := math.Pow(10, 3-math.Floor(math.Log10(math.Abs(x))))
+	r := math.Round(x*p) / p
+	if s := strconv.FormatFloat(r, 'g', 4, 64); s != "" {
+		if v, err := strconv.ParseFloat(s, 64); err == nil {
+			return v
+		}
+	}
+	return r
+}
