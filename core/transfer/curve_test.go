@@ -21,7 +21,7 @@ var testDesigns = []struct {
 	{"cs active n", "v=1&stage=cs&load=active", true},
 	{"cs active p", "v=1&stage=cs&pol=p&load=active", true},
 	{"cs diode", "v=1&stage=cs&load=diode", true},
-	{"cs vin bias d65", "v=1&proc=d65&stage=cs&bias=vin&vin=0.5&load=r&rd=5k", true},
+	{"cs vin bias d65", "v=1&proc=d65&stage=cs&bias=vin&vin=0.45&load=r&rd=5k", true},
 	{"cs gmid", "v=1&stage=cs&bias=gmid&gmid=15&load=r&rd=10k", true},
 	{"cs rl", "v=1&stage=cs&load=r&rd=10k&rl=20k", true},
 	{"cg r", "v=1&stage=cg", false},
