@@ -1,0 +1,202 @@
+package main
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"strconv"
+
+	"stagewright/core/design"
+	"stagewright/core/units"
+	"stagewright/core/variation"
+)
+
+const cornersUsage = `usage: stagewright corners FRAGMENT [-csv]
+  every process corner (tt ss ff sf fs) at -40, 27 and 125 °C and the design's own temperature;
+  JSON by default, a table with -csv
+`
+
+const mcUsage = `usage: stagewright mc FRAGMENT [-n 1000] [-seed 1] [-t.gain V/V] [-t.f3db Hz] [-t.gbw Hz] [-t.idd A] [-t.power W] [-t.margin V]
+  Monte Carlo of the global process shift and device mismatch; JSON. Targets (SI prefixes allowed) give the yield.
+`
+
+// parseWithFragment parses flags that may come before or after the one
+// fragment argument.
+func parseWithFragment(fs *flag.FlagSet, args []string) (string, error) {
+	if err := fs.Parse(args); err != nil {
+		return "", err
+	}
+	rest := fs.Args()
+	if len(rest) == 0 {
+		return "", errors.New("give one fragment")
+	}
+	frag := rest[0]
+	if err := fs.Parse(rest[1:]); err != nil {
+		return "", err
+	}
+	if len(fs.Args()) > 0 {
+		return "", fmt.Errorf("unexpected argument %q after the fragment", fs.Args()[0])
+	}
+	return frag, nil
+}
+
+// failJSON writes {"ok":false,"error":{...}} and the message on stderr.
+func failJSON(stdout, stderr io.Writer, cmd, code, key, msg string) int {
+	out, _ := json.Marshal(struct {
+		OK    bool           `json:"ok"`
+		Error design.Failure `json:"error"`
+	}{false, design.Failure{Code: code, Message: msg, Key: key}})
+	stdout.Write(append(out, '\n'))
+	fmt.Fprintf(stderr, "stagewright %s: %s\n", cmd, msg)
+	return 1
+}
+
+// decodeFor decodes a fragment strictly: any problem is a design error.
+func decodeFor(cmd, frag string, stdout, stderr io.Writer) (design.Design, int) {
+	d, err := design.Decode(frag)
+	if err != nil {
+		key := ""
+		var fe *design.FragmentError
+		if errors.As(err, &fe) && len(fe.Problems) > 0 {
+			key = fe.Problems[0].Key
+		}
+		return d, failJSON(stdout, stderr, cmd, "fragment", key, err.Error())
+	}
+	return d, 0
+}
+
+func cmdCorners(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("corners", flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	asCSV := fs.Bool("csv", false, "write the table as CSV")
+	frag, err := parseWithFragment(fs, args)
+	if errors.Is(err, flag.ErrHelp) {
+		fmt.Fprint(stdout, cornersUsage)
+		return 0
+	}
+	if err != nil {
+		fmt.Fprintf(stderr, "stagewright corners: %v\n%s", err, cornersUsage)
+		return 2
+	}
+	d, st := decodeFor("corners", frag, stdout, stderr)
+	if st != 0 {
+		return st
+	}
+	rows, err := variation.Corners(d)
+	if err != nil {
+		return failJSON(stdout, stderr, "corners", "no_operating_point", "", err.Error())
+	}
+	if *asCSV {
+		writeCornersCSV(stdout, rows)
+	} else {
+		out, err := json.Marshal(struct {
+			OK     bool                  `json:"ok"`
+			Design string                `json:"design"`
+			Rows   []variation.CornerRow `json:"rows"`
+		}{true, d.Encode(), rows})
+		if err != nil {
+			return failJSON(stdout, stderr, "corners", "internal", "", err.Error())
+		}
+		stdout.Write(append(out, '\n'))
+	}
+	return 0
+}
+
+// csvNum writes a number at full precision, or an empty cell when it is not finite.
+func csvNum(v design.Num) string {
+	if !v.Finite() {
+		return ""
+	}
+	return strconv.FormatFloat(float64(v), 'g', -1, 64)
+}
+
+func writeCornersCSV(w io.Writer, rows []variation.CornerRow) {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"corner", "temp_c", "ok", "gain", "f3db_hz", "gbw_hz", "id_a", "vout_v", "power_w", "margin_v", "region", "in_rms_v", "error"})
+	for _, r := range rows {
+		msg := ""
+		if r.Error != nil {
+			msg = r.Error.Message
+		}
+		cw.Write([]string{r.Corner, csvNum(r.Temp), strconv.FormatBool(r.OK), csvNum(r.Gain), csvNum(r.F3dB), csvNum(r.GBW),
+			csvNum(r.ID), csvNum(r.VOut), csvNum(r.Power), csvNum(r.Margin), r.Region, csvNum(r.InRMS), msg})
+	}
+	cw.Flush()
+}
+
+// siFlag is a flag holding an SI number such as 10M or 100u.
+type siFlag struct{ v *float64 }
+
+func (f siFlag) String() string {
+	if f.v == nil {
+		return "0"
+	}
+	return units.Exact(*f.v)
+}
+
+func (f siFlag) Set(s string) error {
+	v, err := units.Parse(s)
+	if err != nil {
+		return err
+	}
+	if !(v >= 0) {
+		return fmt.Errorf("a target must be positive or 0 (none), got %s", s)
+	}
+	*f.v = v
+	return nil
+}
+
+func cmdMC(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("mc", flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	n := fs.Int("n", 1000, "samples, 0 … 10000")
+	seed := fs.Int64("seed", 1, "random seed")
+	var t variation.Targets
+	for _, tf := range []struct {
+		name string
+		v    *float64
+	}{
+		{"t.gain", &t.MinGain}, {"t.f3db", &t.MinF3dB}, {"t.gbw", &t.MinGBW}, {"t.idd", &t.MaxIDD},
+		{"t.power", &t.MaxPower}, {"t.swing", &t.MinSwing}, {"t.noise", &t.MaxNoise}, {"t.margin", &t.MinMargin},
+	} {
+		fs.Var(siFlag{tf.v}, tf.name, "target")
+	}
+	frag, err := parseWithFragment(fs, args)
+	if errors.Is(err, flag.ErrHelp) {
+		fmt.Fprint(stdout, mcUsage)
+		return 0
+	}
+	if err != nil {
+		fmt.Fprintf(stderr, "stagewright mc: %v\n%s", err, mcUsage)
+		return 2
+	}
+	if *n < 0 || *n > variation.MaxSamples {
+		fmt.Fprintf(stderr, "stagewright mc: -n = %d is outside the accepted range [0, %d]\n%s", *n, variation.MaxSamples, mcUsage)
+		return 2
+	}
+	d, st := decodeFor("mc", frag, stdout, stderr)
+	if st != 0 {
+		return st
+	}
+	var targets *variation.Targets
+	if t != (variation.Targets{}) {
+		targets = &t
+	}
+	r, err := variation.MonteCarlo(d, *n, *seed, targets)
+	if err != nil {
+		return failJSON(stdout, stderr, "mc", "no_operating_point", "", err.Error())
+	}
+	out, err := json.Marshal(struct {
+		OK     bool               `json:"ok"`
+		Design string             `json:"design"`
+		MC     variation.MCResult `json:"mc"`
+	}{true, d.Encode(), r})
+	if err != nil {
+		return failJSON(stdout, stderr, "mc", "internal", "", err.Error())
+	}
+	stdout.Write(append(out, '\n'))
+	return 0
+}
