@@ -19,6 +19,9 @@ type Response struct {
 	Zout     []float64 // |Zout|, Ω
 	NoiseOut []float64 // output noise density, V/√Hz
 	NoiseIn  []float64 // input-referred noise density, V/√Hz
+
+	lnF, lnOut, lnIn []float64 // logs of f and of the noise powers, for NoiseRMS
+	lnFOf            []float64 // the F the lnF were taken of (first and last point)
 }
 
 // Resize makes every slice n long, reusing storage.
@@ -31,6 +34,8 @@ func (r *Response) Resize(n int) {
 	}
 	r.F, r.MagDB, r.PhaseDeg = grow(r.F), grow(r.MagDB), grow(r.PhaseDeg)
 	r.Zin, r.Zout, r.NoiseOut, r.NoiseIn = grow(r.Zin), grow(r.Zout), grow(r.NoiseOut), grow(r.NoiseIn)
+	r.lnF, r.lnOut, r.lnIn = grow(r.lnF), grow(r.lnOut), grow(r.lnIn)
+	r.lnFOf = r.lnFOf[:0]
 	if cap(r.Gain) < n {
 		r.Gain = make([]complex128, n)
 	}
@@ -87,6 +92,7 @@ func (a *Analyzer) size(n int) {
 // resistance excluded), and the output and input-referred noise densities
 // from every noise source through the adjoint network.
 func (a *Analyzer) Sweep(nw *Network, r *Response) {
+	r.logGrid()
 	if nw.N <= 3 && nw.Out >= 0 && nw.In >= 0 && !a.general {
 		a.sweepSmall(nw, r)
 		return
@@ -142,6 +148,9 @@ func (a *Analyzer) sweepLU(nw *Network, r *Response) {
 				zout = a.drivingPoint(&a.luOut, a.yout, n, nw.Out)
 			}
 		}
+		if nw.Out < 0 {
+			noise = 0
+		}
 		zin := math.Inf(1)
 		if nw.In >= 0 {
 			copy(a.yin, a.y)
@@ -155,32 +164,38 @@ func (a *Analyzer) sweepLU(nw *Network, r *Response) {
 // store writes one sweep point: gain in dB and unwrapped phase, the
 // impedances and the noise densities.
 func (a *Analyzer) store(r *Response, k int, h complex128, zin, zout, noise float64, prevPhase *float64) {
-	{
-		r.Gain[k] = h
-		mag := cmplx.Abs(h)
-		r.MagDB[k] = 20 * math.Log10(mag)
-		if mag == 0 {
-			r.MagDB[k] = -400
+	r.Gain[k] = h
+	// One logarithm gives the gain in dB and, with the log of the output
+	// noise power, the log of the input-referred noise power: the noise
+	// integration works on these logs (NoiseRMS), so a point costs two
+	// logarithms and one arctangent, the only transcendental functions left.
+	m2 := real(h)*real(h) + imag(h)*imag(h)
+	lnH2 := math.Log(m2)
+	r.MagDB[k] = lnH2 * (10 / math.Ln10)
+	if m2 == 0 {
+		r.MagDB[k] = -400
+	}
+	ph := math.Atan2(imag(h), real(h)) * (180 / math.Pi)
+	if k > 0 {
+		for ph-*prevPhase > 180 {
+			ph -= 360
 		}
-		ph := cmplx.Phase(h) * 180 / math.Pi
-		if k > 0 {
-			for ph-*prevPhase > 180 {
-				ph -= 360
-			}
-			for ph-*prevPhase < -180 {
-				ph += 360
-			}
+		for ph-*prevPhase < -180 {
+			ph += 360
 		}
-		*prevPhase = ph
-		r.PhaseDeg[k] = ph
-		r.Zin[k] = zin
-		r.Zout[k] = zout
-		r.NoiseOut[k] = math.Sqrt(noise)
-		if mag > 0 {
-			r.NoiseIn[k] = r.NoiseOut[k] / mag
-		} else {
-			r.NoiseIn[k] = math.Inf(1)
-		}
+	}
+	*prevPhase = ph
+	r.PhaseDeg[k] = ph
+	r.Zin[k] = zin
+	r.Zout[k] = zout
+	r.NoiseOut[k] = math.Sqrt(noise)
+	lnOut := math.Log(noise)
+	r.lnOut[k] = lnOut
+	r.lnIn[k] = lnOut - lnH2
+	if m2 > 0 {
+		r.NoiseIn[k] = r.NoiseOut[k] / math.Sqrt(m2)
+	} else {
+		r.NoiseIn[k] = math.Inf(1)
 	}
 }
 

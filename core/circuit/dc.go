@@ -343,7 +343,13 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 		}
 	}
 	for j, sv := range c.Servos {
-		start[s.nn+s.nb+j] = c.VSources[sv.Source].V
+		// A servo'd source starts at its given value, or where the guess
+		// puts its node (a warm start from a neighbouring solution).
+		vs := c.VSources[sv.Source]
+		start[s.nn+s.nb+j] = vs.V
+		if g, ok := guess[vs.P]; ok && vs.N == Ground {
+			start[s.nn+s.nb+j] = g
+		}
 	}
 	// Voltage sources tied to ground fix their node: start there.
 	for _, vs := range c.VSources {

@@ -33,7 +33,7 @@ func Evaluate(d Design) Result {
 // defaults in their place.
 func (e *Evaluator) EvaluateFragment(fragment string) Result {
 	d, err := Decode(fragment)
-	r := e.Evaluate(d)
+	r := e.evaluate(d, true) // Decode returns a design that passes Validate
 	var fe *FragmentError
 	if errors.As(err, &fe) {
 		r.Problems = append(fe.Problems, r.Problems...)
@@ -71,14 +71,18 @@ func fail(r Result, code, key, msg string) Result {
 // Evaluate solves the operating point of d and computes every small-signal
 // figure. It never panics: a design that cannot be evaluated gives a
 // result with OK false and an error that names the input to change.
-func (e *Evaluator) Evaluate(d Design) (res Result) {
+func (e *Evaluator) Evaluate(d Design) Result { return e.evaluate(d, false) }
+
+func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 	res = Result{Warnings: []string{}, Zeros: []Root{}}
 	defer func() {
 		if p := recover(); p != nil {
 			res = fail(Result{Warnings: []string{}, Zeros: []Root{}, Design: res.Design}, "internal", "", fmt.Sprintf("internal error while evaluating: %v", p))
 		}
 	}()
-	if err := d.Validate(); err != nil {
+	if valid {
+		// Decode has checked every key.
+	} else if err := d.Validate(); err != nil {
 		key := ""
 		var fe *FragmentError
 		if errors.As(err, &fe) && len(fe.Problems) > 0 {
@@ -92,6 +96,8 @@ func (e *Evaluator) Evaluate(d Design) (res Result) {
 	if err != nil {
 		return fail(res, "fragment", "proc", err.Error())
 	}
+	// Every evaluation starts from the same guess, so a fragment gives the
+	// same result to the last bit whatever was evaluated before it.
 	sol, err := stage.Solve(spec)
 	if err != nil {
 		var se *stage.Error
@@ -164,10 +170,11 @@ func (e *Evaluator) Evaluate(d Design) (res Result) {
 	}
 	e.an.Sweep(nw, &e.resp)
 	res.AC = figures(&e.resp, mb.Gain)
+	inRMS, outRMS := e.resp.NoiseRMS(d.NoiseLo, d.NoiseHi)
 	res.Noise = &Noise{
 		F: e.resp.F, Out: e.resp.NoiseOut, In: e.resp.NoiseIn,
-		InRMS:  Num(circuit.IntegrateRMS(e.resp.F, e.resp.NoiseIn, d.NoiseLo, d.NoiseHi)),
-		OutRMS: Num(circuit.IntegrateRMS(e.resp.F, e.resp.NoiseOut, d.NoiseLo, d.NoiseHi)),
+		InRMS:  Num(inRMS),
+		OutRMS: Num(outRMS),
 		Band:   [2]Num{Num(d.NoiseLo), Num(d.NoiseHi)},
 		Corner: Num(math.Inf(1)),
 	}
