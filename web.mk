@@ -45,7 +45,7 @@ chromium-check:
 	@test -x "$(CHROMIUM)" || { echo "test-web: FAILED: $(CHROMIUM) not found; the browser tests need Debian's chromium (apt-get install chromium)"; exit 1; }
 
 test-browser: chromium-check site
-	cd site && CHROMIUM='$(CHROMIUM)' $(NODE) --test --test-concurrency=1 test/
+	cd site && CHROMIUM='$(CHROMIUM)' $(NODE) --test --test-concurrency=1 test/*.test.mjs
 
 test-web: chromium-check test-wasm test-browser
 

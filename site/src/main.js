@@ -115,11 +115,14 @@ async function evaluate(fragment, { fromLink }) {
 
 function render(response, fragment, fromLink, ms) {
   state.response = response;
+  // counted first, so tests can wait for any answer, with or without a result
+  document.body.dataset.evaluations = String(Number(document.body.dataset.evaluations || 0) + 1);
   const r = response.result;
   const err = response.error;
   if (!r) {
     status(`No result: ${err ? err.message : 'the engine gave no answer'}`, 'bad');
     showNotice(fragment, [], err);
+    document.body.dataset.state = 'no-result';
     return;
   }
   state.result = r;
@@ -145,6 +148,9 @@ function render(response, fragment, fromLink, ms) {
   if (!r.ok) {
     const why = (r.error || err || {}).message || 'no operating point found';
     status(`No result: ${why}`, 'bad');
+    const nr = $('no-result');
+    nr.hidden = false;
+    nr.textContent = `No figures for this design: ${why}. Change the setting named above${(r.error || {}).key ? ` (${r.error.key})` : ''} and the results come back.`;
     for (const id of ['midband', 'op', 'smallsignal', 'estimates']) clear($(id));
     state.plots.ac.update(null);
     state.plots.noise.update(null);
@@ -153,6 +159,7 @@ function render(response, fragment, fromLink, ms) {
     document.body.dataset.state = 'no-result';
     return;
   }
+  $('no-result').hidden = true;
   renderMidband($('midband'), r);
   renderOP($('op'), r);
   renderSmallSignal($('smallsignal'), r);
@@ -167,7 +174,6 @@ function render(response, fragment, fromLink, ms) {
   }
   status(`Computed in ${ms.toFixed(1)} ms (${r.iterations} Newton iterations).`, 'ok');
   document.body.dataset.state = 'ready';
-  document.body.dataset.evaluations = String(Number(document.body.dataset.evaluations || 0) + 1);
 }
 
 function captionFor(stage, pol, load) {

@@ -6,7 +6,7 @@
 
 const NS = 'http://www.w3.org/2000/svg';
 const H = 280;
-const W = 320;
+const W = 340;
 
 function el(name, attrs, parent) {
   const e = document.createElementNS(NS, name);
@@ -140,18 +140,18 @@ export function drawSchematic(svg, opts) {
     capacitorDown(222, yr, 'CL');
     if (Number.isFinite(opts.rl)) {
       // AC-coupled RL: a coupling capacitor on the wire, then RL to ground.
-      wireReal([[250, yr], [268, yr]]);
-      el('line', { x1: 268, y1: yr - 8, x2: 268, y2: yr + 8, class: 'w thick' }, g);
-      el('line', { x1: 274, y1: yr - 8, x2: 274, y2: yr + 8, class: 'w thick' }, g);
-      wireReal([[274, yr], [296, yr], [296, yr + 8]]);
+      wireReal([[250, yr], [282, yr]]);
+      el('line', { x1: 282, y1: yr - 8, x2: 282, y2: yr + 8, class: 'w thick' }, g);
+      el('line', { x1: 288, y1: yr - 8, x2: 288, y2: yr + 8, class: 'w thick' }, g);
+      wireReal([[288, yr], [316, yr], [316, yr + 8]]);
       const body = 30;
       const s = yr + 8;
-      const pts = [[296, s]];
-      for (let i = 0; i < 6; i++) pts.push([296 + (i % 2 ? -5 : 5), s + (body * (i + 0.5)) / 6]);
-      pts.push([296, s + body], [296, s + body + 6]);
+      const pts = [[316, s]];
+      for (let i = 0; i < 6; i++) pts.push([316 + (i % 2 ? -5 : 5), s + (body * (i + 0.5)) / 6]);
+      pts.push([316, s + body], [316, s + body + 6]);
       wireReal(pts);
-      ground(296, s + body + 6);
-      const rt = el('text', { x: 284, y: yr - 12, class: 'lbl' }, g);
+      ground(316, s + body + 6);
+      const rt = el('text', { x: 322, y: s + body / 2 + 4, class: 'lbl' }, g);
       rt.textContent = 'RL';
     }
   };

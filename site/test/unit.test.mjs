@@ -53,3 +53,20 @@ test('fragment helpers keep the first of a repeated key and set keys', () => {
   assert.equal(withKey('a=1&b=2', 'b', '3'), 'a=1&b=3');
   assert.equal(withKey('a=1', 'b', '3'), 'a=1&b=3');
 });
+
+test('sweep CSV from the hand-made fixture result has one row per frequency', async () => {
+  const { sweepCSV } = await import('../src/export.js');
+  const { readFileSync } = await import('node:fs');
+  const r = JSON.parse(readFileSync(new URL('./fixtures/sample-result.json', import.meta.url), 'utf8'));
+  const lines = sweepCSV(r).trim().split('\n');
+  assert.equal(lines[1], 'f_hz,mag_db,phase_deg,zin_ohm,zout_ohm,noise_out_v_per_rthz,noise_in_v_per_rthz');
+  // The fixture's noise frequencies are a subset of its AC frequencies, so
+  // the rows are the AC points (2 header lines before them).
+  assert.equal(lines.length - 2, r.ac.f.length);
+  const first = lines[2].split(',');
+  assert.equal(Number(first[0]), r.ac.f[0]);
+  assert.equal(Number(first[1]), r.ac.mag_db[0]);
+  assert.equal(first[5], String(r.noise.out[0]));
+  const last = lines[lines.length - 1].split(',');
+  assert.equal(last[5], '', 'noise column should be empty above the noise sweep');
+});
