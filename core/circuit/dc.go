@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"stagewright/core/dense"
+	"stagewright/core/device"
 )
 
 // Solver settings. The zero value of each field means the default shown.
@@ -79,6 +80,7 @@ type dcSystem struct {
 	servoOf []int // source index → servo index or −1
 	gmin    float64
 	scale   float64
+	evals   []device.Eval // each transistor's current and derivatives at the present iterate
 }
 
 func newDCSystem(c *Circuit, opt Options) *dcSystem {
@@ -92,6 +94,7 @@ func newDCSystem(c *Circuit, opt Options) *dcSystem {
 	s.f = make([]float64, s.n)
 	s.fabs = make([]float64, s.n)
 	s.j = make([]float64, s.n*s.n)
+	s.evals = make([]device.Eval, len(c.FETs))
 	s.servoOf = make([]int, s.nb)
 	for i := range s.servoOf {
 		s.servoOf[i] = -1
@@ -186,8 +189,9 @@ func (s *dcSystem) assemble() {
 			s.addJ(row, s.nn+s.nb+j, -1)
 		}
 	}
-	for _, m := range s.c.FETs {
+	for i, m := range s.c.FETs {
 		e := m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B))
+		s.evals[i] = e
 		addF(m.D, e.ID)
 		addF(m.S, -e.ID)
 		d, g, src, b := idx(m.D), idx(m.G), idx(m.S), idx(m.B)
@@ -205,7 +209,7 @@ func (s *dcSystem) assemble() {
 		switch sv.Kind {
 		case ServoCurrent:
 			m := s.c.FETs[sv.Target]
-			e := m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B))
+			e := s.evals[sv.Target]
 			sign := float64(m.Dev.Polarity())
 			target := sv.Value * s.scale
 			s.f[row] = sign*e.ID - target
