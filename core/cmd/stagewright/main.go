@@ -3,6 +3,14 @@
 //	stagewright eval 'v=1&stage=cs&pol=n&w=20u&l=0.5u'   one design, one JSON result
 //	stagewright eval -                                   one fragment per line on standard input, one JSON line each
 //	stagewright keys                                     the fragment keys as a Markdown table
+//	stagewright transfer FRAGMENT [-csv] [-points 201]   DC transfer curve and output swing
+//	stagewright distortion FRAGMENT [-amp 10m]           HD2, HD3, THD beside the Taylor estimate
+//	stagewright corners FRAGMENT [-csv]                  every process corner at −40, 27 and 125 °C
+//	stagewright mc FRAGMENT [-n 1000] [-seed 1]          Monte Carlo of process spread and mismatch
+//	stagewright size FRAGMENT                            search W, L, bias and load for the t.* targets
+//	stagewright charts FRAGMENT                          gm/ID design charts for the process and L
+//	stagewright sweep FRAGMENT -key w -lo 1u -hi 100u    every figure against one input
+//	stagewright compare FRAGMENT                         A/B table against the pinned design (pin=…)
 //
 // The exit status is 0 when every design was evaluated, 1 when a design
 // could not be (a bad fragment, no operating point), and 2 for a usage
@@ -23,6 +31,14 @@ const usage = `usage:
   stagewright eval FRAGMENT   evaluate one design (the text after '#' in the page's address)
   stagewright eval -          evaluate one fragment per line from standard input
   stagewright keys            print the fragment keys as a Markdown table
+  stagewright transfer FRAGMENT [-csv] [-points 201]   DC transfer curve, swing and its limits
+  stagewright distortion FRAGMENT [-amp 10m]           HD2, HD3, THD (DFT) beside the Taylor estimate
+  stagewright corners FRAGMENT [-csv]                  every corner × −40/27/125 °C (+ the design's temp)
+  stagewright mc FRAGMENT [-n 1000] [-seed 1]          Monte Carlo (process shift + Pelgrom mismatch)
+  stagewright size FRAGMENT                            size to the t.* targets within the lo.*/hi.* ranges
+  stagewright charts FRAGMENT                          gm/ID design charts, present design marked
+  stagewright sweep FRAGMENT -key K -lo A -hi B [-n 50] [-csv]   every figure against one input
+  stagewright compare FRAGMENT                         A/B table of the design against its pin=
 `
 
 func main() { os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)) }
@@ -45,6 +61,22 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	case "keys":
 		fmt.Fprint(stdout, design.KeyTableMarkdown())
 		return 0
+	case "transfer":
+		return cmdTransfer(args[1:], stdin, stdout, stderr)
+	case "distortion":
+		return cmdDistortion(args[1:], stdin, stdout, stderr)
+	case "corners":
+		return cmdCorners(args[1:], stdin, stdout, stderr)
+	case "mc":
+		return cmdMC(args[1:], stdin, stdout, stderr)
+	case "size":
+		return cmdSize(args[1:], stdin, stdout, stderr)
+	case "charts":
+		return cmdCharts(args[1:], stdin, stdout, stderr)
+	case "sweep":
+		return cmdSweep(args[1:], stdin, stdout, stderr)
+	case "compare":
+		return cmdCompare(args[1:], stdin, stdout, stderr)
 	case "-h", "-help", "--help", "help":
 		fmt.Fprint(stdout, usage)
 		return 0
