@@ -44,6 +44,7 @@ type Network struct {
 	Noise      []NoiseSource
 	Devices    []device.Report // per FET, at the operating point, in circuit order
 	free       []int           // node → free index or −1
+	eigenOnly  bool            // poles and zeros by the eigen-solver only (tests)
 	names      []string        // free index → node name
 }
 

@@ -10,6 +10,11 @@ import (
 // Poles returns the natural frequencies of the network, s in rad/s: the
 // finite roots of det(G + s·C) = 0.
 func (nw *Network) Poles() ([]complex128, error) {
+	if nw.N <= 3 && !nw.eigenOnly {
+		if r, ok := smallRoots(pencilPoly(nw.N, nw.G, nw.C), maxZero); ok {
+			return r, nil
+		}
+	}
 	return dense.PencilRoots(nw.N, nw.G, nw.C)
 }
 
@@ -35,6 +40,11 @@ func (nw *Network) Zeros() ([]complex128, error) {
 		c[i*m+n] = -nw.CSig[i]
 	}
 	g[n*m+nw.Out] = 1
+	if m <= 4 && !nw.eigenOnly {
+		if r, ok := smallRoots(pencilPoly(m, g, c), maxZero); ok {
+			return r, nil
+		}
+	}
 	z, err := dense.PencilRoots(m, g, c)
 	// A zero beyond 1 PHz is a zero at infinity that rounding moved into
 	// view (the bordered pencil has more infinite roots than the plain one).
