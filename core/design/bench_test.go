@@ -3,6 +3,9 @@ package design
 import (
 	"fmt"
 	"testing"
+
+	"stagewright/core/circuit"
+	"stagewright/core/stage"
 )
 
 // benchDesigns covers every stage and load, 401 sweep points (10 Hz to
@@ -42,6 +45,44 @@ func BenchmarkEvaluatePoints(b *testing.B) {
 			b.ReportAllocs()
 			for i := 0; i < b.N; i++ {
 				e.Evaluate(d)
+			}
+		})
+	}
+}
+
+// BenchmarkEvaluatePhases splits one evaluation (cs, resistor load) into
+// its parts, to show where the time goes. Under js/wasm give it -benchtime
+// of a second or more: the engine's steady state is the optimised tier,
+// which a few hundred iterations do not reach.
+func BenchmarkEvaluatePhases(b *testing.B) {
+	d := mustDecode(b, "stage=cs&load=r&fmin=10&fmax=100G&ppd=40")
+	spec, _ := d.Spec()
+	sol, err := stage.Solve(spec)
+	if err != nil {
+		b.Fatal(err)
+	}
+	nw, _ := sol.C.Linearize(sol.OP, sol.Ports, spec.TempK)
+	var an circuit.Analyzer
+	var r circuit.Response
+	r.F = circuit.LogSweep(nil, d.FMin, d.FMax, d.PPD)
+	r.Resize(len(r.F))
+	phases := []struct {
+		name string
+		run  func()
+	}{
+		{"decode", func() { Decode("v=1&stage=cs&load=r&fmin=10&fmax=100G&ppd=40") }},
+		{"encode", func() { _ = d.Encode() }},
+		{"solve", func() { stage.Solve(spec) }},
+		{"linearize", func() { sol.C.Linearize(sol.OP, sol.Ports, spec.TempK) }},
+		{"midband", func() { nw.Midband() }},
+		{"poles+zeros", func() { nw.Poles(); nw.Zeros() }},
+		{"sweep", func() { an.Sweep(nw, &r) }},
+	}
+	for _, p := range phases {
+		b.Run(p.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				p.run()
 			}
 		})
 	}
