@@ -43,6 +43,10 @@ type Sizing struct {
 	Conflicts   []Conflict `json:"conflicts,omitempty"`
 	Evaluations int        `json:"evaluations"`
 	Cancelled   bool       `json:"cancelled,omitempty"`
+	// Bound explains, when it applies, why no sizing can meet the targets
+	// at all: the gain–bandwidth product they ask for needs more gm/ID than
+	// any transistor gives at the current allowed.
+	Bound string `json:"bound,omitempty"`
 }
 
 // Target is one target at the found design.
@@ -179,6 +183,12 @@ func Size(d design.Design, progress func(done, total int) bool) (Sizing, error) 
 	s.run()
 
 	out := s.report(ignored)
+	if b := gainBandwidthBound(&d); b != "" {
+		out.Bound = b
+		if !out.Feasible {
+			out.Message += ". " + b
+		}
+	}
 	out.Design.Aids.Pin = d.Aids.Pin
 	out.Fragment = out.Design.Encode()
 	if s.stopped {
