@@ -181,6 +181,28 @@ func cmdMC(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if st != 0 {
 		return st
 	}
+	// The fragment's mc, seed and t.* keys apply unless a flag overrides them.
+	set := map[string]bool{}
+	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	if !set["n"] {
+		*n = d.Aids.MC
+	}
+	if !set["seed"] {
+		*seed = int64(d.Aids.Seed)
+	}
+	ft := d.Aids.Targets
+	for _, c := range []struct {
+		name     string
+		v        *float64
+		fromFrag float64
+	}{
+		{"t.gain", &t.MinGain, ft.Gain}, {"t.f3db", &t.MinF3dB, ft.F3dB}, {"t.gbw", &t.MinGBW, ft.GBW}, {"t.idd", &t.MaxIDD, ft.IDD},
+		{"t.power", &t.MaxPower, ft.Power}, {"t.swing", &t.MinSwing, ft.Swing}, {"t.noise", &t.MaxNoise, ft.Noise}, {"t.margin", &t.MinMargin, ft.Margin},
+	} {
+		if !set[c.name] {
+			*c.v = c.fromFrag
+		}
+	}
 	var targets *variation.Targets
 	if t != (variation.Targets{}) {
 		targets = &t

@@ -146,3 +146,14 @@ func TestVariationCommandErrors(t *testing.T) {
 		}
 	}
 }
+
+// The fragment's mc and seed keys set the run when no flag is given.
+func TestMCFromFragment(t *testing.T) {
+	var out, errb bytes.Buffer
+	if code := run([]string{"mc", "stage=cs&load=r&mc=200&seed=3"}, strings.NewReader(""), &out, &errb); code != 0 {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	if !strings.Contains(out.String(), `"samples":200`) && !strings.Contains(out.String(), `"n":200`) {
+		t.Errorf("the run did not take mc=200 from the fragment: %.300s", out.String())
+	}
+}
