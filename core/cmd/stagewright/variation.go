@@ -43,31 +43,6 @@ func parseWithFragment(fs *flag.FlagSet, args []string) (string, error) {
 	return frag, nil
 }
 
-// failJSON writes {"ok":false,"error":{...}} and the message on stderr.
-func failJSON(stdout, stderr io.Writer, cmd, code, key, msg string) int {
-	out, _ := json.Marshal(struct {
-		OK    bool           `json:"ok"`
-		Error design.Failure `json:"error"`
-	}{false, design.Failure{Code: code, Message: msg, Key: key}})
-	stdout.Write(append(out, '\n'))
-	fmt.Fprintf(stderr, "stagewright %s: %s\n", cmd, msg)
-	return 1
-}
-
-// decodeFor decodes a fragment strictly: any problem is a design error.
-func decodeFor(cmd, frag string, stdout, stderr io.Writer) (design.Design, int) {
-	d, err := design.Decode(frag)
-	if err != nil {
-		key := ""
-		var fe *design.FragmentError
-		if errors.As(err, &fe) && len(fe.Problems) > 0 {
-			key = fe.Problems[0].Key
-		}
-		return d, failJSON(stdout, stderr, cmd, "fragment", key, err.Error())
-	}
-	return d, 0
-}
-
 func cmdCorners(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	fs := flag.NewFlagSet("corners", flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
