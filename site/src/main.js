@@ -95,8 +95,18 @@ function onEdit(key, text, { final, structural }) {
   evaluate(fragment, { fromLink: false });
 }
 
+// The bridge refuses longer requests whole (the codec itself reads at most
+// 4096 bytes and says so); the page says so too and shows the defaults.
+const MAX_LINK = 65536;
+
 async function evaluate(fragment, { fromLink }) {
-  const proc = fragmentMap(fragment).get('proc');
+  let pageProblems = [];
+  let sent = fragment;
+  if (fragment.length > MAX_LINK) {
+    pageProblems = [{ key: '', value: '', message: `the link is ${fragment.length} characters long; at most ${MAX_LINK} are read, so every setting keeps its default` }];
+    sent = '';
+  }
+  const proc = fragmentMap(sent).get('proc');
   try {
     if (proc && proc !== state.schemaProc && /^[a-z0-9]{1,16}$/.test(proc)) await loadSchema(proc).catch(() => {});
   } catch {
@@ -104,16 +114,16 @@ async function evaluate(fragment, { fromLink }) {
   }
   let reply;
   try {
-    reply = await state.engine.evaluate(fragment);
+    reply = await state.engine.evaluate(sent);
   } catch (err) {
     fatal(err.message);
     return;
   }
   if (reply.superseded) return;
-  render(reply.response, fragment, fromLink, reply.ms);
+  render(reply.response, fragment, fromLink, reply.ms, pageProblems);
 }
 
-function render(response, fragment, fromLink, ms) {
+function render(response, fragment, fromLink, ms, pageProblems = []) {
   state.response = response;
   // counted first, so tests can wait for any answer, with or without a result
   document.body.dataset.evaluations = String(Number(document.body.dataset.evaluations || 0) + 1);
@@ -121,7 +131,10 @@ function render(response, fragment, fromLink, ms) {
   const err = response.error;
   if (!r) {
     status(`No result: ${err ? err.message : 'the engine gave no answer'}`, 'bad');
-    showNotice(fragment, [], err);
+    state.values = new Map();
+    const d = (k) => schemaDefault(k, undefined);
+    state.controls.show(state.values, { stage: d('stage'), load: d('load'), bias: d('bias') });
+    showNotice(fragment, pageProblems, err);
     document.body.dataset.state = 'no-result';
     return;
   }
@@ -129,9 +142,9 @@ function render(response, fragment, fromLink, ms) {
   state.canonical = r.design || '';
   state.evalMs = ms;
   const proc = fragmentMap(state.canonical).get('proc');
-  if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms));
+  if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
   state.values = fragmentMap(state.canonical);
-  const problems = r.problems || [];
+  const problems = [...pageProblems, ...(r.problems || [])];
   const bad = new Set(problems.map((p) => p.key));
   const v = (k) => state.values.get(k) ?? schemaDefault(k);
   const pick = { stage: v('stage'), load: v('load'), bias: v('bias') };
