@@ -30,7 +30,22 @@ const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(
 // On a log axis, grid lines at decades only; the ticks still mark 2…9.
 const decadeGrid = { stroke: COLOURS.grid, width: 1, filter: (u, splits) => splits.map((v) => (isDecade(v) ? v : null)) };
 
-const hzValues = (u, splits) => splits.map((v) => (v == null ? '' : formatSI(v, 3) + 'Hz'));
+// Decade labels, thinned so they never overlap: every k-th decade where k
+// keeps about 64 CSS pixels per label.
+function decadeLabels(u, splits, axisIdx, unit, digits) {
+  const scale = u.scales[u.axes[axisIdx].scale || 'x'];
+  const decades = Math.max(1, Math.log10(scale.max / scale.min));
+  const horizontal = axisIdx === 0;
+  const px = (horizontal ? u.bbox.width : u.bbox.height) / devicePixelRatio;
+  const every = Math.max(1, Math.ceil((decades * (horizontal ? 64 : 26)) / Math.max(px, 1)));
+  return splits.map((v) => {
+    if (v == null || !isDecade(v)) return '';
+    const e = Math.round(Math.log10(v));
+    return e % every === 0 ? formatSI(v, digits) + unit : '';
+  });
+}
+
+const hzValues = (u, splits, axisIdx) => decadeLabels(u, splits, axisIdx, 'Hz', 3);
 
 /** Draws vertical markers (f, label) over the plot area. */
 function markerHook(getMarkers) {
@@ -201,7 +216,7 @@ export function noisePlot(box, readout) {
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
       axes: [
         axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
-        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, values: (u, s) => s.map((v) => (v == null ? '' : formatSI(v, 2))) }),
+        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
       ],
       series: [
         {},
