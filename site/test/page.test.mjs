@@ -218,7 +218,7 @@ test('keyboard: every control has a label and focus is visible', async () => {
     [...document.querySelectorAll('input, select, button')]
       .filter((e) => e.type !== 'hidden')
       .filter((e) => !(e.labels && e.labels.length) && !e.getAttribute('aria-label') && !e.textContent.trim())
-      .map((e) => e.id || e.outerHTML.slice(0, 60)),
+      .map((e) => e.id || `${e.localName}.${e.className}`),
   );
   assert.deepEqual(unlabeled, []);
   await page.keyboard.press('Tab');

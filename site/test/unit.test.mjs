@@ -70,3 +70,16 @@ test('sweep CSV from the hand-made fixture result has one row per frequency', as
   const last = lines[lines.length - 1].split(',');
   assert.equal(last[5], '', 'noise column should be empty above the noise sweep');
 });
+
+test('page sources never turn text into markup or code', async () => {
+  const { readdirSync, readFileSync } = await import('node:fs');
+  const dir = new URL('../src/', import.meta.url);
+  // assembled so this test does not name them itself
+  const banned = ['inner', 'outer', 'insertAdjacent'].map((p) => `${p}HTML`).concat(['document.write', 'eval(', 'new Function', ' on' + 'click=']);
+  const files = readdirSync(dir).filter((f) => /\.(js|css)$/.test(f));
+  assert.ok(files.length >= 10, `only ${files.length} source files found`);
+  for (const f of [...files.map((x) => new URL(x, dir)), new URL('../index.html', import.meta.url)]) {
+    const text = readFileSync(f, 'utf8');
+    for (const b of banned) assert.ok(!text.includes(b), `${f.pathname} uses ${b}`);
+  }
+});
