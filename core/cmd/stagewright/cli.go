@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -65,7 +66,7 @@ func aidArgs(args []string, flags, switches []string) (frag string, vals map[str
 
 // failJSON writes {"ok":false,"error":{...}} and the message on stderr.
 func failJSON(stdout, stderr io.Writer, cmd, code, key, msg string) int {
-	out, _ := json.Marshal(struct {
+	out, _ := marshal(struct {
 		OK    bool           `json:"ok"`
 		Error design.Failure `json:"error"`
 	}{false, design.Failure{Code: code, Message: msg, Key: key}})
@@ -100,9 +101,20 @@ func decodeArg(cmd, frag string, stderr io.Writer) (design.Design, bool) {
 }
 
 func writeJSON(stdout io.Writer, v any) {
-	b, err := json.Marshal(v)
+	b, err := marshal(v)
 	if err != nil {
 		b = []byte(`{"ok":false,"error":{"code":"internal","message":"result could not be written as JSON"}}`)
 	}
 	stdout.Write(append(b, '\n'))
+}
+
+// marshal is json.Marshal without HTML escaping, so fragments keep their &.
+func marshal(v any) ([]byte, error) {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimSuffix(b.Bytes(), []byte("\n")), nil
 }

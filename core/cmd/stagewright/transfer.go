@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -72,7 +71,7 @@ func cmdTransfer(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		}
 		return 0
 	}
-	out, err := json.Marshal(tr)
+	out, err := marshal(tr)
 	if err != nil {
 		return transferError(stdout, stderr, "transfer", err)
 	}
@@ -110,7 +109,7 @@ func cmdDistortion(args []string, stdin io.Reader, stdout, stderr io.Writer) int
 	if err != nil {
 		return transferError(stdout, stderr, "distortion", err)
 	}
-	out, err := json.Marshal(l)
+	out, err := marshal(l)
 	if err != nil {
 		return transferError(stdout, stderr, "distortion", err)
 	}

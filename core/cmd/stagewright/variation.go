@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/csv"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -67,7 +66,7 @@ func cmdCorners(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if *asCSV {
 		writeCornersCSV(stdout, rows)
 	} else {
-		out, err := json.Marshal(struct {
+		out, err := marshal(struct {
 			OK     bool                  `json:"ok"`
 			Design string                `json:"design"`
 			Rows   []variation.CornerRow `json:"rows"`
@@ -186,7 +185,7 @@ func cmdMC(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if err != nil {
 		return failJSON(stdout, stderr, "mc", "no_operating_point", "", err.Error())
 	}
-	out, err := json.Marshal(struct {
+	out, err := marshal(struct {
 		OK     bool               `json:"ok"`
 		Design string             `json:"design"`
 		MC     variation.MCResult `json:"mc"`
