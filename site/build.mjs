@@ -12,7 +12,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const here = dirname(fileURLToPath(import.meta.url));
-const dist = join(here, 'dist');
+const dist = process.env.STAGEWRIGHT_DIST || join(here, 'dist'); // another place only for tests
 const buildDir = join(here, 'build');
 const version = process.env.STAGEWRIGHT_VERSION || 'dev';
 const wasmPath = process.env.STAGEWRIGHT_WASM || join(buildDir, 'stagewright.wasm');
