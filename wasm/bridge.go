@@ -112,6 +112,9 @@ func Handle(method string, args []Arg) (resp Response) {
 		}
 		return Response{Result: out}
 	default:
+		if r, ok := handleAid(method, args); ok { // the design aids, see aids.go
+			return r
+		}
 		return requestError("unknown method %q (known: schema, evaluate, evaluateMany)", method)
 	}
 }

@@ -42,7 +42,7 @@ func register() error {
 	if err != nil {
 		return err
 	}
-	for _, method := range []string{"schema", "evaluate", "evaluateMany"} {
+	for _, method := range append([]string{"schema", "evaluate", "evaluateMany"}, aidMethodNames()...) {
 		method := method
 		fn, err := safejs.FuncOf(func(_ safejs.Value, args []safejs.Value) any {
 			return answer(jsonObj, method, args)
