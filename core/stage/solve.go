@@ -18,6 +18,9 @@ type Solution struct {
 	Iterations int     // Newton iterations, all solves included (a gm/ID search runs several)
 	W          float64 // M1 width as used (solved in gm/ID mode)
 	Warnings   []string
+
+	reports  [2]device.Report // M1's and M2's, once computed
+	reported [2]bool
 }
 
 // Node returns the DC voltage of a named node, and false if the stage has no such node.
@@ -29,14 +32,20 @@ func (s *Solution) Node(name string) (float64, bool) {
 	return s.OP.V[n], true
 }
 
-// Report is M1's (i = 1) or M2's (i = 2) operating-point report.
+// Report is M1's (i = 1) or M2's (i = 2) operating-point report. It is
+// computed once and kept.
 func (s *Solution) Report(i int) device.Report {
+	k := 0
 	m := s.C.FETs[s.M1]
 	if i == 2 {
-		m = s.C.FETs[s.M2]
+		k, m = 1, s.C.FETs[s.M2]
 	}
-	v := s.OP.V
-	return m.Dev.Report(v[m.D], v[m.G], v[m.S], v[m.B])
+	if !s.reported[k] {
+		v := s.OP.V
+		s.reports[k] = m.Dev.Report(v[m.D], v[m.G], v[m.S], v[m.B])
+		s.reported[k] = true
+	}
+	return s.reports[k]
 }
 
 // SupplyCurrent is the current the VDD source delivers, A.
