@@ -1,0 +1,36 @@
+// A long aid (Monte Carlo, sizing) run as a job in the worker: started, then
+// stepped (each step computes about 40 ms in Go) until it finishes. Between
+// steps the worker serves other calls, so slider moves stay live, and a
+// cancel takes effect at the next step.
+import { callAid } from './common.js';
+
+export class Job {
+  constructor(engine, startMethod) {
+    this.engine = engine;
+    this.startMethod = startMethod;
+    this.running = false;
+    this.cancelAsked = false;
+  }
+
+  /** Runs to the end; onProgress(done, total) after every step. Resolves with {state, ms}. */
+  async run(fragment, onProgress) {
+    this.running = true;
+    this.cancelAsked = false;
+    const t0 = performance.now();
+    try {
+      let { result: st } = await callAid(this.engine, this.startMethod, fragment);
+      while (!st.finished) {
+        const method = this.cancelAsked ? 'cancel' : 'step';
+        ({ result: st } = await callAid(this.engine, method, st.run));
+        onProgress(st.done, st.total);
+      }
+      return { state: st, ms: performance.now() - t0 };
+    } finally {
+      this.running = false;
+    }
+  }
+
+  cancel() {
+    if (this.running) this.cancelAsked = true;
+  }
+}
