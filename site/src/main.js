@@ -10,6 +10,7 @@ import { download, sweepCSV } from './export.js';
 import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
 import { parseSI } from './si.js';
 import { h, clear } from './dom.js';
+import { startAids } from './aids/index.js';
 
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
@@ -187,6 +188,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   }
   status(`Computed in ${ms.toFixed(1)} ms (${r.iterations} Newton iterations).`, 'ok');
   document.body.dataset.state = 'ready';
+  if (state.aids) state.aids.update(r, state.canonical); // design aids, see aids/index.js
 }
 
 function captionFor(stage, pol, load) {
@@ -279,6 +281,7 @@ async function main() {
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
   setupToolbar();
+  state.aids = startAids({ engine: state.engine, plots: state.plots, schema: () => state.schema, go: (f) => { history.replaceState(null, '', `#${f}`); evaluate(f, { fromLink: false }); } });
   try {
     const info = await state.engine.start();
     document.body.dataset.engineMs = String(Math.round(info.initMs));
