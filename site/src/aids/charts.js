@@ -32,13 +32,20 @@ export function chartsPanel(ctx) {
         const pm = ch.present;
         caption.textContent = `${ch.pol === 'p' ? 'p' : 'n'}-type device of ${ch.process}, W ${num(ch.w, 3, 'm')}, L ${num(ch.l, 3, 'm')}, ${(ch.temp_k - 273.15).toFixed(0)} °C, |VDS| ${num(ch.vds, 3, 'V')}; saturated points only.${pm ? ` Present design: gm/ID ${num(pm.gm_id, 3, 'S/A')}, IC ${num(pm.ic, 3)}.` : ' The present design has no operating point to mark.'}`;
         for (const { s, c } of charts) {
+          // From the strongest gate drive down, gm/ID (and IC upwards) move
+          // one way; deep in weak inversion gm/ID levels off at 1/(n·UT)
+          // and its last digits wander, so only points that move x on by
+          // 0.1 % are kept: the curve stays a function of x.
           const pts = [];
-          for (let i = 0; i < ch.vgs.length; i++) {
+          const up = s.x === 'gm_id';
+          for (let k = 0; k < ch.vgs.length; k++) {
+            const i = up ? ch.vgs.length - 1 - k : k;
             const x = ch[s.x][i];
             const y = ch[s.y][i];
-            if (ch.saturated[i] && x != null && y != null && x > 0 && (!s.yLog || y > 0)) pts.push([x, y]);
+            if (!(ch.saturated[i] && x != null && y != null && x > 0 && (!s.yLog || y > 0))) continue;
+            if (pts.length && !(x > pts[pts.length - 1][0] * 1.001)) continue;
+            pts.push([x, y]);
           }
-          pts.sort((a, b) => a[0] - b[0]);
           c.overlay = (u, cx) => pm && markPoint(u, cx, pm[s.x], pm[s.y], 'present');
           c.update(pts.length > 1 ? [pts.map((q) => q[0]), pts.map((q) => q[1])] : null);
         }

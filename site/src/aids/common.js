@@ -76,7 +76,19 @@ function axis(extra) {
   };
 }
 
-const siValues = (unit) => (u, splits) => splits.map((v) => (v == null ? '' : formatSI(v, 3, unit)));
+const siValues = (unit, digits = 3) => (u, splits) => splits.map((v) => (v == null ? '' : formatSI(v, digits, unit)));
+
+const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-6;
+
+// On a log axis: decades only, thinned to about 56 px (x) or 22 px (y) per label.
+const decadeValues = (unit) => (u, splits, axisIdx) => {
+  const scale = u.scales[axisIdx === 0 ? 'x' : 'y'];
+  const decades = Math.max(1, Math.log10(scale.max / scale.min));
+  const px = (axisIdx === 0 ? u.bbox.width : u.bbox.height) / devicePixelRatio;
+  const every = Math.max(1, Math.ceil((decades * (axisIdx === 0 ? 56 : 22)) / Math.max(px, 1)));
+  return splits.map((v) => (v != null && isDecade(v) && Math.round(Math.log10(v)) % every === 0 ? formatSI(v, 3, unit) : ''));
+};
+const decadeGrid = { stroke: AID_COLOURS.grid, width: 1, filter: (u, splits) => splits.map((v) => (isDecade(v) ? v : null)) };
 
 /**
  * A small x–y chart that keeps its width in step with its box. spec:
@@ -112,8 +124,8 @@ export class Chart {
       cursor: { drag: { x: false, y: false }, points: { size: 6 } },
       scales: { x: { time: false, distr: s.xLog ? 3 : 1 }, y: { distr: s.yLog ? 3 : 1, ...(s.bars ? { range: (u, lo, hi) => [0, Math.max(1, hi * 1.08)] } : {}) } },
       axes: [
-        axis({ label: s.xLabel, size: 34, values: siValues(s.xUnit || '') }),
-        axis({ label: s.yLabel, size: 58, values: siValues(s.yUnit || '') }),
+        axis({ label: s.xLabel, size: 34, values: s.xLog ? decadeValues(s.xUnit || '') : siValues(s.xUnit || '', s.xDigits), ...(s.xLog ? { grid: decadeGrid } : {}) }),
+        axis({ label: s.yLabel, size: 58, values: s.yLog ? decadeValues(s.yUnit || '') : siValues(s.yUnit || ''), ...(s.yLog ? { grid: decadeGrid } : {}) }),
       ],
       series: [
         {},

@@ -25,8 +25,8 @@ export function monteCarloPanel(ctx) {
   const hists = h('div', { class: 'aid-four' });
   const charts = QUANTITIES.map((q) => {
     const box = h('div', { class: 'plot aid-small', id: `mc-hist-${q.key}`, role: 'img', 'aria-label': `histogram of ${q.label}` });
-    hists.appendChild(h('figure', { class: 'aid-figure' }, h('figcaption', { text: `${q.label} (${q.unit})` }), box));
-    return { q, c: new Chart(box, { xLabel: q.unit, yLabel: 'samples', xUnit: q.unit === 'V/V' ? '' : q.unit, height: 170, bars: true, series: [{ label: 'count' }] }) };
+    hists.appendChild(h('figure', { class: 'aid-figure' }, h('figcaption', { text: `${q.label} (${q.unit})` }), h('p', { class: 'aid-note aid-held-note', text: 'held by the bias: no spread beyond rounding' }), box));
+    return { q, c: new Chart(box, { xLabel: q.unit, yLabel: 'samples', xUnit: q.unit === 'V/V' ? '' : q.unit, xDigits: 5, height: 170, bars: true, series: [{ label: 'count' }] }) };
   });
   const msg = note();
   p.body.append(
@@ -48,11 +48,15 @@ export function monteCarloPanel(ctx) {
     stats.append(table('', ['', 'mean', 'σ', 'σ/|mean|', 'min', 'max'], QUANTITIES.map((q) => {
       const s = r[q.key];
       const rel = s.mean ? Math.abs(s.sd / s.mean) : null;
-      return [q.label, num(s.mean, 4, q.unit), num(s.sd, 3, q.unit), rel == null ? '—' : `${(100 * rel).toFixed(2)} %`, num(s.min, 4, q.unit), num(s.max, 4, q.unit)];
+      return [q.label, num(s.mean, 4, q.unit), num(s.sd, 3, q.unit), rel == null ? '—' : `${Number((100 * rel).toPrecision(3))} %`, num(s.min, 4, q.unit), num(s.max, 4, q.unit)];
     }), { id: 'mc-table' }));
     for (const { q, c } of charts) {
       const hst = r[q.key].hist;
-      if (hst.lo == null || hst.hi == null) {
+      const st = r[q.key];
+      // A figure the bias holds (ID in bias id) spreads only by the solver's
+      // rounding; a histogram of that would mislead.
+      c.box.parentNode.classList.toggle('aid-held', st.sd != null && st.mean != null && Math.abs(st.sd) <= 1e-9 * Math.abs(st.mean));
+      if (hst.lo == null || hst.hi == null || c.box.parentNode.classList.contains('aid-held')) {
         c.update(null);
         continue;
       }
