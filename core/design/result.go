@@ -1,8 +1,6 @@
 package design
 
 import (
-	"bytes"
-	"encoding/json"
 	"math"
 	"strconv"
 )
@@ -184,12 +182,4 @@ type Noise struct {
 // JSON marshals the result; it cannot fail for a Result built by Evaluate.
 // Characters such as & stay as they are (no HTML escaping), so the
 // fragment in "design" reads as typed.
-func (r *Result) JSON() []byte {
-	var b bytes.Buffer
-	enc := json.NewEncoder(&b)
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(r); err != nil {
-		return []byte(`{"ok":false,"error":{"code":"internal","message":"result could not be written as JSON"}}`)
-	}
-	return bytes.TrimSuffix(b.Bytes(), []byte("\n"))
-}
+func (r *Result) JSON() []byte { return r.AppendJSON(nil) }
