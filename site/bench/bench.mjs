@@ -1,0 +1,125 @@
+// Browser benchmark of the single-file page: `node site/bench/bench.mjs`
+// (or `make bench-web`) after `make site`.
+//
+//   open_to_plot_ms   navigation start to the first frequency plot drawn, in a
+//                     cold profile (a new, empty user-data-dir); the page's own
+//                     marker body[data-first-plot-ms] (performance.now() when
+//                     the first plot was drawn, navigation start = 0)
+//   slider_p50/p95_ms one slider step by keyboard: the slider's input event to
+//                     the animation frame after the engine's answer was rendered
+//                     (see installLatencyRecorder in harness.mjs), 300 steps
+//   single_file_bytes raw and gzip-compressed size of dist/stagewright.html
+//
+// Writes site/dist/bench.json and prints a table with the budgets. Exits 0
+// whatever the figures (a benchmark reports; BENCH_STRICT=1 makes a figure
+// over budget exit 1).
+import { readFileSync, writeFileSync } from 'node:fs';
+import { gzipSync } from 'node:zlib';
+import { join } from 'node:path';
+import { singleFile, singleURL, dist, waitReady } from '../test/browser.mjs';
+import { launchWith, installLatencyRecorder, percentile } from './harness.mjs';
+
+const STEPS = 300;
+const START = 'v=1&stage=cs&load=r&rd=10k&id=20u';
+// Sliders a cs stage with a resistor load shows; 25 steps up then 25 down on
+// each in turn keeps every value inside its range and the stage biased.
+const SLIDERS = ['#k-rd-slider', '#k-cl-slider', '#k-rsig-slider', '#k-l-slider'];
+const RUN = 25;
+const BUDGET = { slider_p95_ms: 8, open_to_plot_ms: 500, single_file_bytes: 1.6e6 };
+
+async function openCold() {
+  const b = await launchWith();
+  await b.context.setOffline(true);
+  const page = b.context.pages()[0] || (await b.context.newPage());
+  await page.goto(`${singleURL}#${START}`);
+  await waitReady(page);
+  const marks = await page.evaluate(() => ({
+    firstPlot: Number(document.body.dataset.firstPlotMs),
+    engine: Number(document.body.dataset.engineMs),
+    domContentLoaded: performance.getEntriesByType('navigation')[0]?.domContentLoadedEventEnd,
+  }));
+  if (!(marks.firstPlot > 0)) throw new Error('the page recorded no first-plot time (body[data-first-plot-ms])');
+  return { b, page, marks };
+}
+
+async function sliderSteps(page) {
+  await installLatencyRecorder(page);
+  let done = 0;
+  for (let chunk = 0; done < STEPS; chunk++) {
+    await page.locator(SLIDERS[chunk % SLIDERS.length]).focus();
+    for (const key of ['ArrowRight', 'ArrowLeft']) {
+      for (let i = 0; i < RUN && done < STEPS; i++) {
+        await page.keyboard.press(key);
+        done++;
+        // one step at a time: the next key only after this step's frame
+        await page.waitForFunction((n) => window.__swLatency.samples.length >= n, done, { timeout: 30000 });
+      }
+    }
+  }
+  return page.evaluate(() => window.__swLatency.samples);
+}
+
+const fmt = (v, unit) => (unit === 'B' ? `${(v / 1e6).toFixed(3)} MB` : `${v.toFixed(1)} ms`);
+
+async function main() {
+  const html = readFileSync(singleFile);
+  const sizes = { raw: html.length, gzip: gzipSync(html, { level: 9 }).length };
+  const { b, page, marks } = await openCold();
+  let samples;
+  try {
+    samples = await sliderSteps(page);
+    if (b.errors.length) throw new Error(`page errors: ${b.errors.join('; ')}`);
+  } finally {
+    await b.close();
+  }
+  const frame = samples.map((s) => s.frame);
+  const applied = samples.map((s) => s.applied);
+  const out = {
+    slider_p50_ms: round(percentile(frame, 50)),
+    slider_p95_ms: round(percentile(frame, 95)),
+    slider_max_ms: round(Math.max(...frame)),
+    slider_applied_p50_ms: round(percentile(applied, 50)),
+    slider_applied_p95_ms: round(percentile(applied, 95)),
+    slider_engine_p50_ms: round(percentile(samples.map((s) => s.engine).filter(Number.isFinite), 50)),
+    slider_steps: samples.length,
+    open_to_plot_ms: round(marks.firstPlot),
+    engine_start_ms: round(marks.engine),
+    single_file_bytes: sizes.raw,
+    single_file_gzip_bytes: sizes.gzip,
+  };
+  writeFileSync(join(dist, 'bench.json'), JSON.stringify(out, null, 2) + '\n');
+  const rows = [
+    ['slider step p50 (input → frame after render)', out.slider_p50_ms, 'ms', null],
+    ['slider step p95', out.slider_p95_ms, 'ms', BUDGET.slider_p95_ms],
+    ['slider step max', out.slider_max_ms, 'ms', null],
+    ['  of which input → answer rendered, p50', out.slider_applied_p50_ms, 'ms', null],
+    ['  of which input → answer rendered, p95', out.slider_applied_p95_ms, 'ms', null],
+    ['  of which the engine in its worker, p50', out.slider_engine_p50_ms, 'ms', null],
+    ['open (cold profile) → first plot', out.open_to_plot_ms, 'ms', BUDGET.open_to_plot_ms],
+    ['  of which engine start (worker)', out.engine_start_ms, 'ms', null],
+    ['single file, raw', out.single_file_bytes, 'B', BUDGET.single_file_bytes],
+    ['single file, gzip', out.single_file_gzip_bytes, 'B', null],
+  ];
+  const over = [];
+  console.log(`\nStagewright page benchmark (${samples.length} slider steps, Chromium ${process.env.CHROMIUM || '/usr/bin/chromium'})`);
+  console.log(`${'figure'.padEnd(48)}${'value'.padStart(12)}${'budget'.padStart(12)}  verdict`);
+  for (const [name, v, unit, budget] of rows) {
+    const verdict = budget === null ? '' : v <= budget ? 'within' : 'OVER';
+    if (verdict === 'OVER') over.push(name);
+    console.log(`${name.padEnd(48)}${fmt(v, unit).padStart(12)}${(budget === null ? '' : `≤ ${fmt(budget, unit)}`).padStart(12)}  ${verdict}`);
+  }
+  console.log(`\nwritten: ${join(dist, 'bench.json')}`);
+  if (over.length && process.env.BENCH_STRICT === '1') {
+    console.error(`over budget: ${over.join(', ')}`);
+    process.exit(1);
+  }
+}
+
+function round(v) {
+  return Math.round(v * 100) / 100;
+}
+
+main().catch((err) => {
+  console.error(`bench.mjs: ${err.message}`);
+  process.exit(1);
+});
