@@ -16,7 +16,7 @@ fmt-check:
 
 # Benchmarks: native and js/wasm engine, and the browser figures when the
 # browser benchmark has written site/dist/bench.json; one table with budgets.
-bench:
+bench: bench-web
 	$(GO) run ./bench
 
 # Each fuzz target for FUZZTIME (go test -fuzz takes one target at a time).

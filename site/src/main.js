@@ -154,8 +154,14 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   showNotice(fragment, problems, null); // an evaluation failure is shown in the status line
   const rs = parseSI(v('rs') || '0').value || 0;
   const rl = v('rl') === 'inf' ? Infinity : parseSI(v('rl') || 'inf').value ?? Infinity;
-  drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
-  $('schematic-caption').textContent = captionFor(pick.stage, v('pol'), pick.load);
+  // The schematic depends on the topology only: redraw it when that changes.
+  const picture = { stage: pick.stage, pol: v('pol'), load: pick.load, rs: rs > 0, rl: rl !== Infinity };
+  const pictureKey = JSON.stringify(picture);
+  if (pictureKey !== state.pictureKey) {
+    drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
+    $('schematic-caption').textContent = captionFor(pick.stage, v('pol'), pick.load);
+    state.pictureKey = pictureKey;
+  }
 
   document.body.classList.toggle('no-result', !r.ok);
   renderWarnings($('warnings'), r);
