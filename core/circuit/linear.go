@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"stagewright/core/dense"
 	"stagewright/core/device"
 )
 
@@ -45,7 +46,25 @@ type Network struct {
 	Devices    []device.Report // per FET, at the operating point, in circuit order
 	free       []int           // node → free index or −1
 	eigenOnly  bool            // poles and zeros by the eigen-solver only (tests)
-	names      []string        // free index → node name
+	gLU        *dense.LU       // LU of G, once factored (see FactorG)
+	gErr       error
+	names      []string // free index → node name
+}
+
+// FactorG returns the LU factorization of the conductance matrix G,
+// computed on first use and kept: the midband figures, the flicker corner
+// and the open-circuit time constants all solve with it. The LU must not
+// be changed by the caller.
+func (nw *Network) FactorG() (*dense.LU, error) {
+	if nw.gLU == nil && nw.gErr == nil {
+		var lu dense.LU
+		if err := lu.Factorize(nw.N, nw.G); err != nil {
+			nw.gErr = err
+		} else {
+			nw.gLU = &lu
+		}
+	}
+	return nw.gLU, nw.gErr
 }
 
 // FreeIndex is the index of node n among the free unknowns, or −1.

@@ -20,7 +20,6 @@ type Midband struct {
 func (nw *Network) Midband() (Midband, error) {
 	n := nw.N
 	var m Midband
-	var lu dense.LU
 	if nw.Out < 0 {
 		return m, errNoPort("output")
 	}
@@ -28,7 +27,8 @@ func (nw *Network) Midband() (Midband, error) {
 	for i := range x {
 		x[i] = -nw.GSig[i]
 	}
-	if err := lu.Factorize(n, nw.G); err != nil {
+	lu, err := nw.FactorG()
+	if err != nil {
 		return m, err
 	}
 	lu.Solve(x, x)

@@ -1,10 +1,6 @@
 package circuit
 
-import (
-	"math"
-
-	"stagewright/core/dense"
-)
+import "math"
 
 // IntegrateRMS integrates a noise density d (V/√Hz, sampled at ascending
 // frequencies f) over the band [lo, hi] and returns the rms value (V).
@@ -38,8 +34,12 @@ func powerLawArea(a, b, pa, pb, x, y float64) float64 {
 		t := func(f float64) float64 { return pa + (pb-pa)*(f-a)/(b-a) }
 		return 0.5 * (t(x) + t(y)) * (y - x)
 	}
-	lba := math.Log(b / a)
-	k1 := math.Log(pb/pa)/lba + 1 // k + 1
+	return powerLawAreaK(a, b, pa, pb, x, y, math.Log(pb/pa)/math.Log(b/a)+1)
+}
+
+// powerLawAreaK is powerLawArea with the exponent plus one, k1 = k + 1,
+// already known (NoiseRMS has it from the sweep's own logarithms).
+func powerLawAreaK(a, b, pa, pb, x, y, k1 float64) float64 {
 	if math.Abs(k1) < 1e-9 {
 		return pa * a * math.Log(y/x)
 	}
@@ -59,8 +59,8 @@ func (nw *Network) FlickerCorner() (float64, bool) {
 		return 0, false
 	}
 	// z: the adjoint solution at DC, z_i = (G⁻¹)_{out,i}.
-	var lu dense.LU
-	if err := lu.Factorize(nw.N, nw.G); err != nil {
+	lu, err := nw.FactorG()
+	if err != nil {
 		return 0, false
 	}
 	z := make([]float64, nw.N)
@@ -119,17 +119,8 @@ func (r *Response) integrateLog(d, lnp []float64, lo, hi float64) float64 {
 			total += powerLawArea(a, b, pa, pb, math.Max(a, lo), math.Min(b, hi))
 			continue
 		}
-		lba := r.lnF[i+1] - r.lnF[i]
-		k1 := (lb-la)/lba + 1 // exponent of the power law, plus one
-		x, y := math.Max(a, lo), math.Min(b, hi)
-		switch {
-		case math.Abs(k1) < 1e-9:
-			total += pa * a * math.Log(y/x)
-		case x == a && y == b:
-			total += (b*pb - a*pa) / k1
-		default:
-			total += pa * a / k1 * (math.Pow(y/a, k1) - math.Pow(x/a, k1))
-		}
+		k1 := (lb-la)/(r.lnF[i+1]-r.lnF[i]) + 1 // exponent of the power law, plus one
+		total += powerLawAreaK(a, b, pa, pb, math.Max(a, lo), math.Min(b, hi), k1)
 	}
 	return total
 }

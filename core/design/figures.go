@@ -5,7 +5,6 @@ import (
 	"math/cmplx"
 
 	"stagewright/core/circuit"
-	"stagewright/core/dense"
 	"stagewright/core/device"
 	"stagewright/core/stage"
 )
@@ -134,8 +133,8 @@ func estimates(spec stage.Spec, nw *circuit.Network, m1 device.Report, mb circui
 
 func traceGinvC(nw *circuit.Network) float64 {
 	n := nw.N
-	var lu dense.LU
-	if err := lu.Factorize(n, nw.G); err != nil {
+	lu, err := nw.FactorG()
+	if err != nil {
 		return 0
 	}
 	col := make([]float64, n)
