@@ -1,7 +1,6 @@
 package circuit
 
 import (
-	"math"
 	"math/cmplx"
 	"math/rand"
 	"testing"
@@ -16,18 +15,7 @@ func TestSmallRootsMatchEigen(t *testing.T) {
 	rng := rand.New(rand.NewSource(11))
 	for trial := 0; trial < 500; trial++ {
 		n := 1 + rng.Intn(3)
-		nw := &Network{N: n, G: make([]float64, n*n), C: make([]float64, n*n), GSig: make([]float64, n), CSig: make([]float64, n)}
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				if i == j {
-					nw.G[i*n+j] = math.Pow(10, -6+3*rng.Float64())
-					nw.C[i*n+j] = math.Pow(10, -15+3*rng.Float64())
-				} else {
-					nw.G[i*n+j] = (rng.Float64() - 0.5) * 2e-3 // strong feedback gives complex pairs
-					nw.C[i*n+j] = -rng.Float64() * 1e-15
-				}
-			}
-		}
+		nw := randomNetwork(rng, n, 0.5, 2e-3) // strong feedback gives complex pairs
 		nw.Out = rng.Intn(n)
 		nw.GSig[rng.Intn(n)] = -1e-3
 		fast := *nw

@@ -15,21 +15,7 @@ func TestSmallSweepMatchesLU(t *testing.T) {
 	rng := rand.New(rand.NewSource(7))
 	for trial := 0; trial < 300; trial++ {
 		n := 1 + rng.Intn(3)
-		nw := &Network{N: n, G: make([]float64, n*n), C: make([]float64, n*n), GSig: make([]float64, n), CSig: make([]float64, n)}
-		// A random passive-plus-transconductance network: diagonal
-		// dominance keeps it solvable; an off-diagonal gm makes it
-		// non-symmetric like a transistor stage.
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				if i == j {
-					nw.G[i*n+j] = math.Pow(10, -6+3*rng.Float64())
-					nw.C[i*n+j] = math.Pow(10, -15+3*rng.Float64())
-				} else {
-					nw.G[i*n+j] = (rng.Float64() - 0.3) * 1e-4
-					nw.C[i*n+j] = -rng.Float64() * 1e-15
-				}
-			}
-		}
+		nw := randomNetwork(rng, n, 0.3, 1e-4)
 		nw.In, nw.Out = rng.Intn(n), rng.Intn(n)
 		nw.GSig[nw.In] = -1e-3
 		nw.RSigG = 1e-3 * rng.Float64()
@@ -64,6 +50,27 @@ func TestSmallSweepMatchesLU(t *testing.T) {
 			}
 		}
 	}
+}
+
+// randomNetwork draws an n-node passive-plus-transconductance network:
+// diagonal conductances over three decades keep it solvable, off-diagonal
+// conductances (rand − offset)·scale make it non-symmetric like a
+// transistor stage (a large scale gives feedback strong enough for complex
+// natural frequencies), and capacitances couple every pair of nodes.
+func randomNetwork(rng *rand.Rand, n int, offset, scale float64) *Network {
+	nw := &Network{N: n, G: make([]float64, n*n), C: make([]float64, n*n), GSig: make([]float64, n), CSig: make([]float64, n)}
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			if i == j {
+				nw.G[i*n+j] = math.Pow(10, -6+3*rng.Float64())
+				nw.C[i*n+j] = math.Pow(10, -15+3*rng.Float64())
+			} else {
+				nw.G[i*n+j] = (rng.Float64() - offset) * scale
+				nw.C[i*n+j] = -rng.Float64() * 1e-15
+			}
+		}
+	}
+	return nw
 }
 
 func BenchmarkSweep(b *testing.B) {
