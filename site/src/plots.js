@@ -185,10 +185,15 @@ export function frequencyPlot(box, readout) {
       return [ac.f, ac.mag_db, ac.phase_deg];
     },
   );
+  return withReadout(plot, readout, defaultReadout);
+}
+
+/** Makes plot.update also write the summary line text(r) under the plot (empty when nothing is shown). */
+function withReadout(plot, readout, text) {
   const origUpdate = plot.update.bind(plot);
   plot.update = (r) => {
     const shown = origUpdate(r);
-    readout.textContent = shown ? defaultReadout(r) : '';
+    readout.textContent = shown ? text(r) : '';
     return shown;
   };
   return plot;
@@ -244,13 +249,7 @@ export function noisePlot(box, readout) {
       return [n.f, n.out, n.in];
     },
   );
-  const origUpdate = plot.update.bind(plot);
-  plot.update = (r) => {
-    const shown = origUpdate(r);
-    readout.textContent = shown ? noiseReadout(r) : '';
-    return shown;
-  };
-  return plot;
+  return withReadout(plot, readout, noiseReadout);
 }
 
 function noiseReadout(r) {
