@@ -215,11 +215,11 @@ export class Controls {
       const text = fragmentText(info, v);
       field.value = displayText(info, text);
       this.setMessage(entry, '');
-      this.onEdit(info.key, text, { final: false });
+      this.onEdit(info.key, text, { final: false, slider: true });
     });
     slider.addEventListener('change', () => {
       const v = scaleNow().toValue(Number(slider.value));
-      this.onEdit(info.key, fragmentText(info, v), { final: true });
+      this.onEdit(info.key, fragmentText(info, v), { final: true, slider: true });
     });
     const commit = () => {
       const r = parseValue(info, field.value, valueOf);
@@ -256,28 +256,45 @@ export class Controls {
     entry.row.classList.toggle('invalid', Boolean(text));
   }
 
-  /** Shows `values` (Map key → fragment text); leaves a field being typed in alone. */
+  /**
+   * Shows `values` (Map key → fragment text); leaves a field being typed in
+   * alone. Writes only what differs: an equal write to an input still costs
+   * style and layout work on every slider step.
+   */
   show(values, { stage, load, bias }, badKeys = new Set()) {
     this.values = values;
     for (const [key, entry] of this.rows) {
       const info = entry.info;
       const rel = relevant(info, stage, load, bias);
-      entry.row.hidden = !rel;
+      if (entry.row.hidden !== !rel) entry.row.hidden = !rel;
       const text = values.has(key) ? values.get(key) : defaultText(info, stage);
       if (entry.radios) {
-        for (const input of entry.radios.querySelectorAll('input')) input.checked = input.value === text;
+        for (const input of entry.radios.querySelectorAll('input')) {
+          const on = input.value === text;
+          if (input.checked !== on) input.checked = on;
+        }
         continue;
       }
       if (entry.select) {
-        entry.select.value = text;
+        if (entry.select.value !== text) entry.select.value = text;
         continue;
+      }
+      // The shown text and slider position follow from the value text and,
+      // for a bound that follows another key, that key's value: computed
+      // again only when one of them changed.
+      const from = (k) => (k ? values.get(k) ?? this.defaultOf(k) : '');
+      const cacheKey = `${text}|${stage}|${from(info.min_from)}|${from(info.max_from)}`;
+      if (entry.cacheKey !== cacheKey) {
+        entry.cacheKey = cacheKey;
+        entry.shownText = displayText(info, text);
+        const v = text === 'inf' ? Infinity : parseSI(text).value;
+        entry.shownPos = v === undefined ? null : String(entry.scale().toPos(v));
       }
       const active = document.activeElement === entry.field;
       const invalid = entry.row.classList.contains('invalid');
-      if (!active && !invalid) entry.field.value = displayText(info, text);
-      const v = text === 'inf' ? Infinity : parseSI(text).value;
-      if (v !== undefined && document.activeElement !== entry.slider) entry.slider.value = String(entry.scale().toPos(v));
-      entry.row.classList.toggle('flagged', badKeys.has(key));
+      if (!active && !invalid && entry.field.value !== entry.shownText) entry.field.value = entry.shownText;
+      if (entry.shownPos !== null && document.activeElement !== entry.slider && entry.slider.value !== entry.shownPos) entry.slider.value = entry.shownPos;
+      if (entry.row.classList.contains('flagged') !== badKeys.has(key)) entry.row.classList.toggle('flagged', badKeys.has(key));
     }
   }
 

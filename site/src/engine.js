@@ -35,7 +35,13 @@ export function plainSeries(response) {
     const o = r[part];
     if (!o) continue;
     for (const [k, v] of Object.entries(o)) {
-      if (ArrayBuffer.isView(v)) o[k] = Array.from(v, (x) => (Number.isFinite(x) ? x : null));
+      if (!ArrayBuffer.isView(v)) continue;
+      const a = new Array(v.length);
+      for (let i = 0; i < v.length; i++) {
+        const x = v[i];
+        a[i] = x - x === 0 ? x : null; // x − x is 0 exactly when x is finite
+      }
+      o[k] = a;
     }
   }
 }

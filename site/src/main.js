@@ -22,6 +22,7 @@ const state = {
   schema: [],
   values: new Map(), // key → fragment text of the design shown
   canonical: '', // canonical fragment of the last evaluated design
+  requested: null, // the fragment of the newest evaluation asked for
   result: null,
   response: null,
   plots: {},
@@ -86,13 +87,45 @@ function editedFragment(key, text, structural) {
   return joinFragment(pairs);
 }
 
-let pendingFinal = false;
+// Writing the address costs several milliseconds in Chromium (a same-document
+// navigation), more than the rest of a slider step, so slider moves write the
+// link once they pause for LINK_SETTLE_MS; a typed value, a picker or an aid
+// writes it at once. A pending write is flushed when the page is hidden and
+// dropped when the user edits the address (hashchange).
+const LINK_SETTLE_MS = 200;
+const link = { timer: null, want: null };
 
-function onEdit(key, text, { final, structural }) {
+function writeLink(fragment, now) {
+  link.want = fragment;
+  clearTimeout(link.timer);
+  link.timer = null;
+  if (now) flushLink();
+  else link.timer = setTimeout(flushLink, LINK_SETTLE_MS);
+}
+
+function flushLink() {
+  clearTimeout(link.timer);
+  link.timer = null;
+  if (link.want !== null && currentHash() !== link.want) history.replaceState(null, '', `#${link.want}`);
+  link.want = null;
+  document.body.dataset.linkPending = 'false';
+}
+
+function dropLink() {
+  clearTimeout(link.timer);
+  link.timer = null;
+  link.want = null;
+  document.body.dataset.linkPending = 'false';
+}
+
+function onEdit(key, text, { final, structural, slider }) {
   const fragment = editedFragment(key, text, structural);
   state.values = fragmentMap(fragment);
-  history.replaceState(null, '', `#${fragment}`);
-  pendingFinal = pendingFinal || final;
+  if (slider) document.body.dataset.linkPending = 'true';
+  writeLink(fragment, final && !slider);
+  // A slider's change event repeats its last input event's value: that
+  // design is already computed (or on its way), so only the link is written.
+  if (fragment === state.requested) return;
   evaluate(fragment, { fromLink: false });
 }
 
@@ -101,6 +134,7 @@ function onEdit(key, text, { final, structural }) {
 const MAX_LINK = 65536;
 
 async function evaluate(fragment, { fromLink }) {
+  state.requested = fragment;
   let pageProblems = [];
   let sent = fragment;
   if (fragment.length > MAX_LINK) {
@@ -150,7 +184,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   const v = (k) => state.values.get(k) ?? schemaDefault(k);
   const pick = { stage: v('stage'), load: v('load'), bias: v('bias') };
   state.controls.show(state.values, pick, bad);
-  if (!fromLink && !problems.length && state.canonical) history.replaceState(null, '', `#${state.canonical}`);
+  if (!fromLink && !problems.length && state.canonical) writeLink(state.canonical, link.timer === null);
   showNotice(fragment, problems, null); // an evaluation failure is shown in the status line
   const rs = parseSI(v('rs') || '0').value || 0;
   const rl = v('rl') === 'inf' ? Infinity : parseSI(v('rl') || 'inf').value ?? Infinity;
@@ -287,7 +321,7 @@ async function main() {
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
   setupToolbar();
-  state.aids = startAids({ engine: state.engine, plots: state.plots, schema: () => state.schema, go: (f) => { history.replaceState(null, '', `#${f}`); evaluate(f, { fromLink: false }); } });
+  state.aids = startAids({ engine: state.engine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
   try {
     const info = await state.engine.start();
     document.body.dataset.engineMs = String(Math.round(info.initMs));
@@ -297,8 +331,11 @@ async function main() {
     fatal(err.message);
     return;
   }
+  window.addEventListener('pagehide', flushLink);
+  document.addEventListener('visibilitychange', () => document.visibilityState === 'hidden' && flushLink());
   window.addEventListener('hashchange', () => {
     if (currentHash() === state.canonical) return;
+    dropLink();
     evaluate(currentHash(), { fromLink: true });
   });
   evaluate(currentHash(), { fromLink: true });

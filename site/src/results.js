@@ -1,5 +1,5 @@
 // Tables and figures of one evaluation result (see the result contract).
-import { h, clear } from './dom.js';
+import { h, morph } from './dom.js';
 import { formatSI } from './si.js';
 
 const num = (v, unit = '', digits = 4) => (v === null || v === undefined ? '—' : formatSI(v, digits, unit));
@@ -35,7 +35,10 @@ function marginBar(margin, vdd) {
 
 /** Sets the widths of the margin bars from data-frac (CSSOM, allowed by the page's CSP). */
 function sizeBars(root) {
-  for (const f of root.querySelectorAll('.margin-fill')) f.style.width = `${Number(f.dataset.frac) * 100}%`;
+  for (const f of root.querySelectorAll('.margin-fill')) {
+    const width = `${Number(f.dataset.frac) * 100}%`;
+    if (f.style.width !== width) f.style.width = width;
+  }
 }
 
 const OP_ROWS = [
@@ -98,12 +101,14 @@ function deviceTable(caption, rows, r) {
 }
 
 export function renderOP(box, r) {
-  clear(box);
-  if (!r.op) return;
-  box.appendChild(deviceTable('Operating point', OP_ROWS, r));
+  if (!r.op) {
+    morph(box, []);
+    return;
+  }
+  const parts = [deviceTable('Operating point', OP_ROWS, r)];
   if (r.nodes) {
     const names = { in: 'in', out: 'out', vdd: 'VDD', src: 'source (RS)', gate: 'gate (cg)', sig: 'signal source DC', bias: 'load gate' };
-    box.appendChild(
+    parts.push(
       h(
         'table',
         { class: 'grid compact' },
@@ -112,20 +117,22 @@ export function renderOP(box, r) {
       ),
     );
   }
+  morph(box, parts);
   sizeBars(box);
 }
 
 export function renderSmallSignal(box, r) {
-  clear(box);
-  if (!r.op) return;
-  box.appendChild(deviceTable('Small-signal parameters', SS_ROWS, r));
+  morph(box, r.op ? [deviceTable('Small-signal parameters', SS_ROWS, r)] : []);
 }
 
 /** Midband gain, Rin, Rout beside the hand estimate and the % difference. */
 export function renderMidband(box, r) {
-  clear(box);
   const m = r.midband;
-  if (!m) return;
+  if (!m) {
+    morph(box, []);
+    return;
+  }
+  const parts = [];
   const hand = r.hand || {};
   const diff = r.diff_pct || {};
   const formula = hand.formula || {};
@@ -140,14 +147,14 @@ export function renderMidband(box, r) {
       h('div', { class: `card-diff ${d !== null && d !== undefined && Math.abs(d) > 20 ? 'big' : ''}`, text: `difference ${pct(d)}` }),
     );
   const g = m.gain;
-  box.appendChild(
+  parts.push(
     card('midband gain', g === null ? '—' : `${formatSI(g, 4)} V/V`, m.gain_db === null ? '' : `${m.gain_db.toFixed(2)} dB`, hand.gain == null ? '—' : `${formatSI(hand.gain, 4)} V/V`, diff.gain, formula.gain, 'card-gain'),
   );
-  box.appendChild(card('input resistance', ohms(m.rin), '', ohms(hand.rin), diff.rin, formula.rin, 'card-rin'));
-  box.appendChild(card('output resistance', ohms(m.rout), '', ohms(hand.rout), diff.rout, formula.rout, 'card-rout'));
+  parts.push(card('input resistance', ohms(m.rin), '', ohms(hand.rin), diff.rin, formula.rin, 'card-rin'));
+  parts.push(card('output resistance', ohms(m.rout), '', ohms(hand.rout), diff.rout, formula.rout, 'card-rout'));
   const sq = r.square_law;
   if (sq) {
-    box.appendChild(
+    parts.push(
       h(
         'p',
         { class: 'note square' },
@@ -155,6 +162,7 @@ export function renderMidband(box, r) {
       ),
     );
   }
+  morph(box, parts);
 }
 
 const EST_NAMES = {
@@ -165,11 +173,13 @@ const EST_NAMES = {
 };
 
 export function renderEstimates(box, r) {
-  clear(box);
   const est = r.estimates || {};
   const keys = Object.keys(est);
-  if (!keys.length) return;
-  box.appendChild(
+  if (!keys.length) {
+    morph(box, []);
+    return;
+  }
+  morph(box, [
     h(
       'table',
       { class: 'grid' },
@@ -190,7 +200,7 @@ export function renderEstimates(box, r) {
         ),
       ),
     ),
-  );
+  ]);
 }
 
 function rootText(p) {
@@ -203,17 +213,16 @@ function rootText(p) {
 }
 
 export function renderRoots(list, r) {
-  clear(list);
   const poles = r.poles || [];
   const zeros = r.zeros || [];
-  poles.forEach((p, i) => list.appendChild(h('li', { class: i === r.dominant_pole ? 'dominant' : '' }, h('strong', { text: `pole ${i + 1}${i === r.dominant_pole ? ' (dominant)' : ''}: ` }), rootText(p))));
-  zeros.forEach((z, i) => list.appendChild(h('li', {}, h('strong', { text: `zero ${i + 1}: ` }), rootText(z))));
-  if (!poles.length && !zeros.length) list.appendChild(h('li', { text: 'none found' }));
+  const items = [];
+  poles.forEach((p, i) => items.push(h('li', { class: i === r.dominant_pole ? 'dominant' : '' }, h('strong', { text: `pole ${i + 1}${i === r.dominant_pole ? ' (dominant)' : ''}: ` }), rootText(p))));
+  zeros.forEach((z, i) => items.push(h('li', {}, h('strong', { text: `zero ${i + 1}: ` }), rootText(z))));
+  if (!poles.length && !zeros.length) items.push(h('li', { text: 'none found' }));
+  morph(list, items);
 }
 
 export function renderWarnings(box, r) {
-  clear(box);
   const w = r.warnings || [];
-  if (!w.length) return;
-  box.appendChild(h('ul', {}, w.map((t) => h('li', { text: t }))));
+  morph(box, w.length ? [h('ul', {}, w.map((t) => h('li', { text: t })))] : []);
 }

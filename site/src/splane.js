@@ -2,6 +2,7 @@
 // signed logarithmic scale, sign(x)·log10(1 + |x|/f0), because poles of one
 // stage sit decades apart; f0 is a decade below the smallest root.
 import { formatSI } from './si.js';
+import { morph } from './dom.js';
 
 const NS = 'http://www.w3.org/2000/svg';
 
@@ -13,12 +14,12 @@ function el(name, attrs, parent) {
 }
 
 export function drawSPlane(svg, poles, zeros) {
-  while (svg.firstChild) svg.removeChild(svg.firstChild);
   const W = 320;
   const H = 200;
-  svg.setAttribute('viewBox', `0 0 ${W} ${H}`);
-  svg.setAttribute('role', 'img');
-  const title = el('title', {}, svg);
+  if (svg.getAttribute('viewBox') !== `0 0 ${W} ${H}`) svg.setAttribute('viewBox', `0 0 ${W} ${H}`);
+  if (svg.getAttribute('role') !== 'img') svg.setAttribute('role', 'img');
+  // built apart, then morphed in: a step that moves no root changes nothing
+  const title = el('title', {}, null);
   title.textContent = `s-plane: ${poles.length} pole(s) marked ×, ${zeros.length} zero(s) marked ○`;
   const roots = [...poles, ...zeros].filter((r) => Number.isFinite(r.re) && Number.isFinite(r.im));
   const mags = roots.flatMap((r) => [Math.abs(r.re), Math.abs(r.im)]).filter((v) => v > 0);
@@ -29,7 +30,7 @@ export function drawSPlane(svg, poles, zeros) {
   const cy = H / 2;
   const sx = (v) => cx + (t(v) / span) * (W / 2 - 14);
   const sy = (v) => cy - (t(v) / span) * (H / 2 - 14);
-  const g = el('g', { class: 'splane' }, svg);
+  const g = el('g', { class: 'splane' }, null);
   el('line', { x1: 8, y1: cy, x2: W - 8, y2: cy, class: 'ax' }, g);
   el('line', { x1: cx, y1: 8, x2: cx, y2: H - 8, class: 'ax' }, g);
   const lab = (x, y, s, anchor) => {
@@ -50,4 +51,5 @@ export function drawSPlane(svg, poles, zeros) {
     el('circle', { cx: sx(z.re), cy: sy(z.im), r: 5, class: 'zero' }, g);
   }
   lab(W - 10, H - 8, `signed log scale, f0 = ${formatSI(f0, 2, 'Hz')}`, 'end');
+  morph(svg, [title, g]);
 }

@@ -72,6 +72,7 @@ export async function afterEvaluation(page, action) {
   const n0 = await page.evaluate(() => Number(document.body.dataset.evaluations || 0));
   await action();
   await waitReady(page, n0);
-  // Coalesced requests: wait until the engine is idle with nothing queued.
-  await page.waitForFunction(() => document.body.dataset.busy !== 'true');
+  // Coalesced requests: wait until the engine is idle with nothing queued,
+  // and until a slider's link write (made once the slider pauses) is done.
+  await page.waitForFunction(() => document.body.dataset.busy !== 'true' && document.body.dataset.linkPending !== 'true');
 }

@@ -69,6 +69,34 @@ test('arrow keys on a slider change the gain, the plot and the link', async () =
   assert.equal(await page.evaluate(() => history.length), history0);
 });
 
+test('a slider step patches the result tables in place and writes the link once the slider pauses', async () => {
+  await open(page, 'v=1&stage=cs&load=r&rd=10k&id=20u');
+  // Tag the live nodes: a step must keep them (patched text), not rebuild them.
+  await page.evaluate(() => {
+    for (const sel of ['#op table', '#smallsignal table', '#card-gain', '#estimates table', '#roots li']) document.querySelector(sel).swKept = sel;
+  });
+  const before = await page.evaluate(() => ({ op: document.querySelector('#op table').textContent, hash: location.hash }));
+  await page.locator('#k-rd-slider').focus();
+  const n0 = await evaluations();
+  await page.keyboard.press('ArrowRight');
+  await page.waitForFunction((n) => Number(document.body.dataset.evaluations) > n && document.body.dataset.busy !== 'true', n0);
+  const after = await page.evaluate(() => ({
+    kept: ['#op table', '#smallsignal table', '#card-gain', '#estimates table', '#roots li'].filter((sel) => document.querySelector(sel).swKept === sel),
+    op: document.querySelector('#op table').textContent,
+    evaluations: Number(document.body.dataset.evaluations),
+  }));
+  assert.deepEqual(after.kept, ['#op table', '#smallsignal table', '#card-gain', '#estimates table', '#roots li'], 'a slider step rebuilt these');
+  assert.notEqual(after.op, before.op, 'the operating-point table did not change with RD');
+  // One key press fires input and change with the same value: one evaluation.
+  await page.waitForTimeout(100);
+  assert.equal(await evaluations(), n0 + 1, 'one key press evaluated more than once');
+  // The link follows once the slider pauses (LINK_SETTLE_MS in main.js).
+  await page.waitForFunction(() => document.body.dataset.linkPending === 'false', null, { timeout: 5000 });
+  const hash = await page.evaluate(() => location.hash.slice(1));
+  assert.notEqual(`#${hash}`, before.hash);
+  assert.equal(hash, await page.evaluate(() => window.stagewrightPage.canonical()));
+});
+
 test('typing SI values in a field, and rejecting nonsense', async () => {
   await open(page, 'v=1&stage=cs&load=r');
   const field = page.locator('#k-rd');

@@ -48,7 +48,7 @@ export function numberField(id, label, unit, onCommit, { title = '', size = 7 } 
 
 /** Sets a field's text unless the user is typing in it. */
 export function showField(input, text) {
-  if (document.activeElement !== input) input.value = text;
+  if (document.activeElement !== input && input.value !== text) input.value = text;
 }
 
 /** A table with a header row and body rows of cells (strings or nodes); numbers right-aligned. */

@@ -58,15 +58,21 @@ export function pinPanel(ctx) {
     c.restore();
   }
 
-  function hookPlot() {
+  // Adds the hook to the present plot instance (a new one after a design
+  // without a result); redraws when asked, or when a pin is drawn on a plot
+  // that did not have the hook. A plain new result needs no redraw: its own
+  // setData draw runs the hook.
+  function hookPlot(force = false) {
     const u = ctx.plots.ac && ctx.plots.ac.u;
     if (!u) return;
+    let fresh = false;
     if (hooked !== u) {
       u.hooks.draw = u.hooks.draw || [];
       u.hooks.draw.push(drawPinned);
       hooked = u;
+      fresh = Boolean(pinned && pinned.ac);
     }
-    u.redraw(false, false);
+    if (force || fresh) u.redraw(false, false);
   }
 
   return {
@@ -80,9 +86,10 @@ export function pinPanel(ctx) {
       msg.textContent = '';
       const pin = values('pin');
       if (!pin) {
+        const had = pinned !== null;
         pinned = null;
         clear(box);
-        hookPlot();
+        hookPlot(had);
         return;
       }
       try {
@@ -93,7 +100,7 @@ export function pinPanel(ctx) {
         }
         const { result: cmp } = await callAid(ctx.engine, 'compare', fragment);
         if (!still()) return;
-        hookPlot();
+        hookPlot(true);
         clear(box);
         box.append(table('Present (A) against pinned (B)', ['figure', 'A (present)', 'B (pinned)', 'B − A', 'B − A, %'],
           cmp.rows.map((r) => [r.name, num(r.a, 4, r.unit), num(r.b, 4, r.unit), num(r.diff, 3, r.unit), r.diff_pct == null ? '—' : `${r.diff_pct >= 0 ? '+' : '−'}${Math.abs(r.diff_pct).toFixed(2)} %`]),
@@ -105,6 +112,6 @@ export function pinPanel(ctx) {
       }
     },
     /** Called after every evaluation, since the frequency plot may be new. */
-    redraw: hookPlot,
+    redraw: () => hookPlot(false),
   };
 }
