@@ -23,6 +23,7 @@ const state = {
   values: new Map(), // key → fragment text of the design shown
   canonical: '', // canonical fragment of the last evaluated design
   requested: null, // the fragment of the newest evaluation asked for
+  renderGeneration: 0, // counts renders, so a late second half of an old one is skipped
   result: null,
   response: null,
   plots: {},
@@ -169,6 +170,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     state.values = new Map();
     const d = (k) => schemaDefault(k, undefined);
     state.controls.show(state.values, { stage: d('stage'), load: d('load'), bias: d('bias') });
+    state.renderGeneration++;
     showNotice(fragment, pageProblems, err);
     document.body.dataset.state = 'no-result';
     return;
@@ -200,6 +202,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   document.body.classList.toggle('no-result', !r.ok);
   renderWarnings($('warnings'), r);
   if (!r.ok) {
+    state.renderGeneration++; // a pending second half of an earlier result must not fill the tables again
     const why = (r.error || err || {}).message || 'no operating point found';
     status(`No result: ${why}`, 'bad');
     const nr = $('no-result');
@@ -214,12 +217,10 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     return;
   }
   $('no-result').hidden = true;
+  // What a slider step is for comes first: the figures, the plots and the
+  // status line. The tables further down follow once that frame is drawn
+  // (the data-state 'ready' waits for them), so they never hold the plots back.
   renderMidband($('midband'), r);
-  renderOP($('op'), r);
-  renderSmallSignal($('smallsignal'), r);
-  renderEstimates($('estimates'), r);
-  renderRoots($('roots'), r);
-  drawSPlane($('splane'), r.poles || [], r.zeros || []);
   const shown = state.plots.ac.update(r);
   state.plots.noise.update(r);
   if (shown && state.firstPlotAt === null) {
@@ -227,8 +228,23 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     document.body.dataset.firstPlotMs = String(Math.round(state.firstPlotAt));
   }
   status(`Computed in ${ms.toFixed(1)} ms (${r.iterations} Newton iterations).`, 'ok');
-  document.body.dataset.state = 'ready';
-  if (state.aids) state.aids.update(r, state.canonical); // design aids, see aids/index.js
+  document.body.dataset.state = 'rendering';
+  const generation = ++state.renderGeneration;
+  afterFrame(() => {
+    if (generation !== state.renderGeneration) return; // a newer result took over
+    renderOP($('op'), r);
+    renderSmallSignal($('smallsignal'), r);
+    renderEstimates($('estimates'), r);
+    renderRoots($('roots'), r);
+    drawSPlane($('splane'), r.poles || [], r.zeros || []);
+    document.body.dataset.state = 'ready';
+    if (state.aids) state.aids.update(r, state.canonical); // design aids, see aids/index.js
+  });
+}
+
+/** Runs fn in a task after the next frame has been produced. */
+function afterFrame(fn) {
+  requestAnimationFrame(() => setTimeout(fn, 0));
 }
 
 function captionFor(stage, pol, load) {
