@@ -134,7 +134,7 @@ function onEdit(key, text, { final, structural, slider }) {
 // 4096 bytes and says so); the page says so too and shows the defaults.
 const MAX_LINK = 65536;
 
-async function evaluate(fragment, { fromLink }) {
+async function evaluate(fragment, { fromLink, schemaReady = null }) {
   state.requested = fragment;
   let pageProblems = [];
   let sent = fragment;
@@ -143,14 +143,17 @@ async function evaluate(fragment, { fromLink }) {
     sent = '';
   }
   const proc = fragmentMap(sent).get('proc');
-  try {
-    if (proc && proc !== state.schemaProc && /^[a-z0-9]{1,16}$/.test(proc)) await loadSchema(proc).catch(() => {});
-  } catch {
-    /* a bad process name is reported by the evaluation itself */
-  }
+  // The evaluation is sent at once; the worker computes it while this
+  // thread waits for (and builds controls from) a schema that is still on
+  // its way. A bad process name is reported by the evaluation itself.
+  let schema = schemaReady;
+  if (!schema && proc && proc !== state.schemaProc && /^[a-z0-9]{1,16}$/.test(proc)) schema = loadSchema(proc).catch(() => {});
   let reply;
   try {
-    reply = await state.engine.evaluate(sent);
+    const answer = state.engine.evaluate(sent);
+    if (schema) await schema;
+    reply = await answer;
+    if (document.body.dataset.state === 'failed') return; // the schema could not be read: the page said why
   } catch (err) {
     fatal(err.message);
     return;
@@ -178,6 +181,11 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   state.result = r;
   state.canonical = r.design || '';
   state.evalMs = ms;
+  // The plots first, while the layout is still clean (a new plot reads the
+  // width of its box, which after other changes would force a layout).
+  document.body.classList.toggle('no-result', !r.ok);
+  const shown = r.ok && state.plots.ac.update(r);
+  if (r.ok) state.plots.noise.update(r);
   const proc = fragmentMap(state.canonical).get('proc');
   if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
   state.values = fragmentMap(state.canonical);
@@ -199,7 +207,6 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     state.pictureKey = pictureKey;
   }
 
-  document.body.classList.toggle('no-result', !r.ok);
   renderWarnings($('warnings'), r);
   if (!r.ok) {
     state.renderGeneration++; // a pending second half of an earlier result must not fill the tables again
@@ -221,8 +228,6 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   // status line. The tables further down follow once that frame is drawn
   // (the data-state 'ready' waits for them), so they never hold the plots back.
   renderMidband($('midband'), r);
-  const shown = state.plots.ac.update(r);
-  state.plots.noise.update(r);
   if (shown && state.firstPlotAt === null) {
     state.firstPlotAt = performance.now();
     document.body.dataset.firstPlotMs = String(Math.round(state.firstPlotAt));
@@ -333,16 +338,20 @@ function svgToPng(svg, name) {
 async function main() {
   document.body.dataset.state = 'starting';
   status('Starting the engine…');
+  // The engine first: its worker unpacks and compiles the WebAssembly while
+  // this thread builds the rest of the page.
+  const starting = state.engine.start();
   state.controls = new Controls($('pickers'), $('controls'), onEdit);
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
   setupToolbar();
   state.aids = startAids({ engine: state.engine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  let schemaReady;
   try {
-    const info = await state.engine.start();
+    const info = await starting;
     document.body.dataset.engineMs = String(Math.round(info.initMs));
     const proc = fragmentMap(currentHash()).get('proc');
-    await loadSchema(proc && /^[a-z0-9]{1,16}$/.test(proc) ? proc : 'd180').catch(() => loadSchema('d180'));
+    schemaReady = loadSchema(proc && /^[a-z0-9]{1,16}$/.test(proc) ? proc : 'd180').catch(() => loadSchema('d180'));
   } catch (err) {
     fatal(err.message);
     return;
@@ -354,7 +363,8 @@ async function main() {
     dropLink();
     evaluate(currentHash(), { fromLink: true });
   });
-  evaluate(currentHash(), { fromLink: true });
+  // The schema and the first evaluation travel together (see evaluate).
+  evaluate(currentHash(), { fromLink: true, schemaReady: schemaReady.catch((err) => fatal(err.message)) });
 }
 
 $('build-version').textContent = PAGE_VERSION;
