@@ -68,7 +68,8 @@ export function sweepPanel(ctx) {
         clear(keySel);
         for (const c of info.choices || []) keySel.appendChild(h('option', { value: c, text: c }));
       }
-      if (document.activeElement !== keySel) keySel.value = values('sw') || 'w';
+      const key = values('sw') || 'w';
+      if (document.activeElement !== keySel && keySel.value !== key) keySel.value = key;
       showField(lo.input, values('sw.lo') || '');
       showField(hi.input, values('sw.hi') || '');
       showField(n.input, values('sw.n') || '');
