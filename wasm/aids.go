@@ -87,7 +87,10 @@ func handleAid(method string, args []Arg) (resp Response, ok bool) {
 }
 
 // withDesign decodes the one fragment argument strictly (an aid run on a
-// design the user did not ask for would mislead) and calls f.
+// design the user did not ask for would mislead) and calls f. Not inlined:
+// inlined into the method table it made one copy of its closure per aid.
+//
+//go:noinline
 func withDesign(f func(d design.Design) Response) func(string, []Arg) Response {
 	return func(method string, args []Arg) Response {
 		fragment, bad := oneString(method, "URL fragment", args)
@@ -362,6 +365,8 @@ func jobDone(kind string, v any) int {
 // withRun finds the job named by the one string argument: an open one, or
 // the last finished job of its kind (a late message from the page is
 // answered with the final state instead of refused).
+//
+//go:noinline
 func withRun(f func(j *job) Response) func(string, []Arg) Response {
 	return func(method string, args []Arg) Response {
 		id, bad := oneString(method, "run name from montecarloStart or sizeStart", args)

@@ -1,7 +1,6 @@
 package dense
 
 import (
-	"cmp"
 	"errors"
 	"fmt"
 	"math"
@@ -192,14 +191,29 @@ func shiftedRoots(n int, g, c []float64, eig eigenSolver) ([]complex128, error) 
 		re, im := real(s), math.Abs(imag(s))
 		roots = append(roots, complex(re, -im), complex(re, im))
 	}
-	slices.SortFunc(roots, func(x, y complex128) int {
-		if c := cmp.Compare(cmplx.Abs(x), cmplx.Abs(y)); c != 0 {
-			return c
-		}
-		if c := cmp.Compare(real(x), real(y)); c != 0 {
-			return c
-		}
-		return cmp.Compare(imag(x), imag(y))
-	})
+	sortRoots(roots)
 	return roots, nil
+}
+
+// sortRoots orders roots by |s|, then real part, then imaginary part. An
+// insertion sort: there are at most a dozen or so, and a generic sort would
+// add some 15 kB to the WebAssembly engine for this one call.
+func sortRoots(roots []complex128) {
+	less := func(x, y complex128) bool {
+		if ax, ay := cmplx.Abs(x), cmplx.Abs(y); ax != ay {
+			return ax < ay
+		}
+		if real(x) != real(y) {
+			return real(x) < real(y)
+		}
+		return imag(x) < imag(y)
+	}
+	for i := 1; i < len(roots); i++ {
+		r := roots[i]
+		j := i
+		for ; j > 0 && less(r, roots[j-1]); j-- {
+			roots[j] = roots[j-1]
+		}
+		roots[j] = r
+	}
 }
