@@ -10,6 +10,7 @@ import { mkdirSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { gzipSync } from 'node:zlib';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { pack } from './src/pack.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const dist = process.env.STAGEWRIGHT_DIST || join(here, 'dist'); // another place only for tests
@@ -72,7 +73,13 @@ for (const banned of ['inner', 'outer', 'insertAdjacent'].map((p) => `${p}HTML`)
 
 const wasm = readFileSync(wasmPath);
 const gz = gzipSync(wasm, { level: 9 });
-const b64 = gz.toString('base64');
+// The single file carries the gzip bytes as text, 7 characters per 6 bytes
+// (src/pack.js; base64 would take 8).
+const packed = pack(gz);
+if (/[\0\r<]/.test(packed)) {
+  console.error('build.mjs: the packed engine contains NUL, CR or "<", which the HTML parser would change');
+  process.exit(1);
+}
 const sha = (s) => `'sha256-${createHash('sha256').update(s, 'utf8').digest('base64')}'`;
 const template = readFileSync(join(here, 'index.html'), 'utf8');
 const fill = (html, parts) => html.replace(/<!--(CSP|STYLE|WASM|SCRIPT)-->/g, (_, k) => parts[k]);
@@ -103,7 +110,7 @@ const singleCSP = [
 const single = fill(template, {
   CSP: `<meta http-equiv="Content-Security-Policy" content="${singleCSP}">`,
   STYLE: `<style>${css}</style>`,
-  WASM: `<script type="application/octet-stream" id="stagewright-wasm">${b64}</script>`,
+  WASM: `<script type="application/octet-stream" id="stagewright-wasm">${packed}</script>`,
   SCRIPT: `<script>${js}</script>`,
 });
 writeFileSync(join(dist, 'stagewright.html'), single);

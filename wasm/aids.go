@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"errors"
 	"fmt"
 	"sort"
@@ -11,6 +10,7 @@ import (
 
 	"stagewright/core/charts"
 	"stagewright/core/design"
+	"stagewright/core/jsonenc"
 	"stagewright/core/sizing"
 	"stagewright/core/sweep"
 	"stagewright/core/transfer"
@@ -87,7 +87,10 @@ func handleAid(method string, args []Arg) (resp Response, ok bool) {
 }
 
 // withDesign decodes the one fragment argument strictly (an aid run on a
-// design the user did not ask for would mislead) and calls f.
+// design the user did not ask for would mislead) and calls f. Not inlined:
+// inlined into the method table it made one copy of its closure per aid.
+//
+//go:noinline
 func withDesign(f func(d design.Design) Response) func(string, []Arg) Response {
 	return func(method string, args []Arg) Response {
 		fragment, bad := oneString(method, "URL fragment", args)
@@ -135,11 +138,11 @@ func result(v any, err error) Response {
 	if err != nil {
 		return analysisError(err)
 	}
-	b, err := json.Marshal(v)
+	b, err := jsonenc.Marshal(v)
 	if err != nil {
 		return Response{Error: &ErrorInfo{Code: CodeInternal, Message: "the result could not be encoded as JSON: " + err.Error()}}
 	}
-	return Response{Result: json.RawMessage(b)}
+	return Response{Result: jsonenc.Raw(b)}
 }
 
 func transferCurve(d design.Design) Response {
@@ -212,26 +215,27 @@ func startSizing(d design.Design) Response {
 // Result is the aid's own result once Finished (with Canceled or Cancelled
 // set inside it when the run was stopped).
 type JobState struct {
-	Run      string          `json:"run"`
-	Kind     string          `json:"kind"`
-	Done     int             `json:"done"`
-	Total    int             `json:"total"`
-	Finished bool            `json:"finished"`
-	Result   json.RawMessage `json:"result,omitempty"`
+	Run      string      `json:"run"`
+	Kind     string      `json:"kind"`
+	Done     int         `json:"done"`
+	Total    int         `json:"total"`
+	Finished bool        `json:"finished"`
+	Result   jsonenc.Raw `json:"result,omitempty"`
 }
 
 // job is one long aid running in its own goroutine, which computes only
 // while a step call waits for it: the bridge still serves one call at a
 // time, so the evaluator and the job never run at once.
 type job struct {
-	id, kind string
-	total    int
-	goOn     chan bool     // step → job: true work on, false stop
-	report   chan jobPoint // job → step: progress or the end
-	done     int
-	finished bool
-	final    Response
-	deadline time.Time
+	id, kind  string
+	total     int
+	goOn      chan bool     // step → job: true work on, false stop
+	report    chan jobPoint // job → step: progress or the end
+	done      int
+	finished  bool
+	final     Response
+	finalDone int // samples or evaluations the finished run did (-1: not known)
+	deadline  time.Time
 }
 
 type jobPoint struct {
@@ -273,6 +277,7 @@ func startJob(kind string, total int, run func(progress func(done, total int) bo
 // work is the job's goroutine.
 func (j *job) work(run func(progress func(done, total int) bool) (any, error)) {
 	var resp Response
+	done := -1
 	func() {
 		defer recoverInto(&resp, j.kind)
 		// Stopped before it began, the aid still runs, told to stop at its
@@ -289,9 +294,11 @@ func (j *job) work(run func(progress func(done, total int) bool) (any, error)) {
 			stopped = !<-j.goOn
 			return !stopped
 		}
-		resp = result(run(progress))
+		v, err := run(progress)
+		done = jobDone(j.kind, v)
+		resp = result(v, err)
 	}()
-	j.report <- jobPoint{end: true, resp: resp}
+	j.report <- jobPoint{end: true, resp: resp, done: done}
 }
 
 // step lets the job run for one step budget (goOn) or asks it to stop, and
@@ -307,7 +314,7 @@ func (j *job) step(goOn bool) Response {
 	j.goOn <- goOn
 	p := <-j.report
 	if p.end {
-		j.finished, j.final = true, p.resp
+		j.finished, j.final, j.finalDone = true, p.resp, p.done
 		jobsMu.Lock()
 		delete(jobs, j.id)
 		lastFinished[j.kind] = j
@@ -328,36 +335,38 @@ func (j *job) state() Response {
 			return j.final
 		}
 		s.Done = s.Total
-		if raw, ok := j.final.Result.(json.RawMessage); ok {
+		if raw, ok := j.final.Result.(jsonenc.Raw); ok {
 			s.Result = raw
-			s.Done = jobDone(j.kind, raw, s.Total)
+			if j.finalDone >= 0 {
+				s.Done = j.finalDone
+			}
 		}
 	}
 	return Response{Result: s}
 }
 
-// jobDone reads how much a finished job did from its result (a cancelled
-// Monte Carlo has fewer samples; a sizing says its evaluations).
-func jobDone(kind string, raw json.RawMessage, total int) int {
-	var v struct {
-		Samples     *int `json:"samples"`
-		Evaluations *int `json:"evaluations"`
+// jobDone says how much a finished job did from its result (a cancelled
+// Monte Carlo has fewer samples; a sizing says its evaluations), or -1
+// when the result does not say.
+func jobDone(kind string, v any) int {
+	switch r := v.(type) {
+	case variation.MCResult:
+		if kind == "montecarlo" {
+			return r.Samples
+		}
+	case sizing.Sizing:
+		if kind == "size" {
+			return r.Evaluations
+		}
 	}
-	if json.Unmarshal(raw, &v) != nil {
-		return total
-	}
-	switch {
-	case kind == "montecarlo" && v.Samples != nil:
-		return *v.Samples
-	case kind == "size" && v.Evaluations != nil:
-		return *v.Evaluations
-	}
-	return total
+	return -1
 }
 
 // withRun finds the job named by the one string argument: an open one, or
 // the last finished job of its kind (a late message from the page is
 // answered with the final state instead of refused).
+//
+//go:noinline
 func withRun(f func(j *job) Response) func(string, []Arg) Response {
 	return func(method string, args []Arg) Response {
 		id, bad := oneString(method, "run name from montecarloStart or sizeStart", args)

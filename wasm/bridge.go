@@ -1,9 +1,10 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"runtime/debug"
+
+	"stagewright/core/jsonenc"
 )
 
 // Stable error codes the page can branch on. Codes from the evaluation
@@ -166,11 +167,11 @@ func Encode(resp Response) []byte {
 	// An evaluation's result is already JSON (design.Result.AppendJSON):
 	// splice it in rather than have encoding/json re-validate 3 kB of it,
 	// which under js/wasm costs as much as writing it.
-	if raw, ok := resp.Result.(json.RawMessage); ok && len(raw) > 0 {
+	if raw, ok := resp.Result.(jsonenc.Raw); ok && len(raw) > 0 {
 		b := append(make([]byte, 0, len(raw)+128), `{"result":`...)
 		b = append(b, raw...)
 		if resp.Error != nil {
-			e, err := json.Marshal(resp.Error)
+			e, err := jsonenc.Marshal(resp.Error)
 			if err == nil {
 				b = append(b, `,"error":`...)
 				b = append(b, e...)
@@ -178,9 +179,9 @@ func Encode(resp Response) []byte {
 		}
 		return append(b, '}')
 	}
-	b, err := json.Marshal(resp)
+	b, err := jsonenc.Marshal(resp)
 	if err != nil {
-		b, _ = json.Marshal(Response{Error: &ErrorInfo{
+		b, _ = jsonenc.Marshal(Response{Error: &ErrorInfo{
 			Code:    CodeInternal,
 			Message: "the result could not be encoded as JSON: " + err.Error(),
 		}})

@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"stagewright/core/jsonenc"
 )
 
 // decoded is the response as the page sees it after JSON.parse.
@@ -83,7 +85,7 @@ func TestEvaluateSplitsSeries(t *testing.T) {
 	var stripped struct {
 		AC map[string]any `json:"ac"`
 	}
-	if err := json.Unmarshal(resp.Result.(json.RawMessage), &stripped); err != nil {
+	if err := json.Unmarshal(resp.Result.(jsonenc.Raw), &stripped); err != nil {
 		t.Fatal(err)
 	}
 	if f, ok := stripped.AC["f"].([]any); !ok || len(f) != 0 {

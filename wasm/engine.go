@@ -1,11 +1,11 @@
 package main
 
 import (
-	"encoding/json"
 	"strings"
 
 	"stagewright/core/design"
 	"stagewright/core/device"
+	"stagewright/core/jsonenc"
 )
 
 // evaluator is reused across calls so each slider move reuses the sweep
@@ -40,7 +40,7 @@ func evaluate(fragment string, split bool) Response {
 	if split {
 		series = splitSeries(&r)
 	}
-	resp := Response{Result: json.RawMessage(r.JSON()), Series: series}
+	resp := Response{Result: jsonenc.Raw(r.JSON()), Series: series}
 	if !r.OK && r.Error != nil {
 		resp.Error = &ErrorInfo{Code: r.Error.Code, Message: r.Error.Message, Key: r.Error.Key}
 	}
@@ -51,8 +51,7 @@ func quoteShort(s string) string {
 	if len(s) > 40 {
 		s = s[:40] + "…"
 	}
-	b, _ := json.Marshal(s)
-	return string(b)
+	return string(jsonenc.AppendString(nil, s))
 }
 
 // splitSeries takes the sweep series out of r (replacing r.AC and r.Noise

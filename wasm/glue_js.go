@@ -3,7 +3,6 @@
 package main
 
 import (
-	"encoding/binary"
 	"math"
 
 	"github.com/hack-pad/safejs"
@@ -123,7 +122,7 @@ func attachSeries(obj safejs.Value, series []Series) error {
 		}
 		buf := seriesBytes[:8*n]
 		for i, v := range s.Values {
-			binary.LittleEndian.PutUint64(buf[8*i:], math.Float64bits(v))
+			putUint64LE(buf[8*i:8*i+8], math.Float64bits(v))
 		}
 		arr, err := f64.New(n)
 		if err != nil {
@@ -204,4 +203,13 @@ func parse(jsonObj safejs.Value, text []byte) any {
 		return "stagewright: JSON.parse failed: " + err.Error()
 	}
 	return v
+}
+
+// putUint64LE stores x little-endian in b[:8] (what encoding/binary's
+// LittleEndian.PutUint64 does; that package adds 9 kB of initialization to
+// the engine for this one loop).
+func putUint64LE(b []byte, x uint64) {
+	_ = b[7]
+	b[0], b[1], b[2], b[3] = byte(x), byte(x>>8), byte(x>>16), byte(x>>24)
+	b[4], b[5], b[6], b[7] = byte(x>>32), byte(x>>40), byte(x>>48), byte(x>>56)
 }

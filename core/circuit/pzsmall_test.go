@@ -7,7 +7,7 @@ import (
 )
 
 // The polynomial pole/zero solver for small networks agrees with the
-// general eigen-solver (gonum's, through dense.PencilRoots) on random
+// general eigen-solver (dense.PencilRoots, Hessenberg QR) on random
 // networks with real and complex natural frequencies spread over several
 // decades. Both are accurate to rounding times the conditioning of each
 // root; 1e-7 relative covers roots six decades apart.

@@ -1,14 +1,11 @@
 package dense
 
 import (
-	"cmp"
 	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"slices"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // ErrSingularPencil is reported when det(G + s·C) vanishes for every s, so
@@ -51,8 +48,9 @@ var shiftFactors = [...]float64{1, -1, 0.1, -0.1, 10, -10, 0.01, -0.01, 3.7, -3.
 // S and C in F, negative real parts meaning decaying modes.
 //
 // Method: with a real shift σ, chosen so that G + σC is well conditioned
-// (σ = 0 when G is), the eigenvalues λ of M = (G + σC)⁻¹·C are found with
-// gonum's mat.Eigen and mapped to s = σ − 1/λ. Eigenvalues with
+// (σ = 0 when G is), the eigenvalues λ of M = (G + σC)⁻¹·C are found by
+// balancing, Hessenberg reduction and double-shift QR (see eigen.go) and
+// mapped to s = σ − 1/λ. Eigenvalues with
 // |λ| ≤ 1e-11·max|λ| belong to infinite roots and are dropped; so a root
 // more than about 1e11 times farther from σ than the nearest root is dropped
 // too. A node without capacitance gives a zero column of M, which the
@@ -67,6 +65,16 @@ var shiftFactors = [...]float64{1, -1, 0.1, -0.1, 10, -10, 0.01, -0.01, 3.7, -3.
 // pencil singular for every s gives an error wrapping ErrSingularPencil, and
 // mismatched lengths an error saying so.
 func PencilRoots(n int, g, c []float64) ([]complex128, error) {
+	return pencilRoots(n, g, c, eigenvalues)
+}
+
+// eigenSolver returns the eigenvalues of a real n×n row-major matrix
+// (unchanged) appended to dst[:0], complex pairs as exact conjugates, or
+// false if its iteration failed. PencilRoots uses eigenvalues; the tests
+// also run the whole method with gonum's solver.
+type eigenSolver func(n int, a []float64, dst []complex128) ([]complex128, bool)
+
+func pencilRoots(n int, g, c []float64, eig eigenSolver) ([]complex128, error) {
 	if n < 0 || len(g) != n*n || len(c) != n*n {
 		return nil, fmt.Errorf("dense: PencilRoots: n = %d, len(g) = %d, len(c) = %d, want n ≥ 0 and both lengths n·n", n, len(g), len(c))
 	}
@@ -91,7 +99,7 @@ func PencilRoots(n int, g, c []float64) ([]complex128, error) {
 		}
 		return nil, nil
 	}
-	return shiftedRoots(n, g, c)
+	return shiftedRoots(n, g, c, eig)
 }
 
 func matNorm1(n int, a []float64) float64 {
@@ -108,7 +116,7 @@ func matNorm1(n int, a []float64) float64 {
 
 // shiftedRoots does the shift-and-invert eigenvalue step on a pencil whose C
 // is not zero.
-func shiftedRoots(n int, g, c []float64) ([]complex128, error) {
+func shiftedRoots(n int, g, c []float64, eig eigenSolver) ([]complex128, error) {
 	scale := 1.0
 	if ng, nc := matNorm1(n, g), matNorm1(n, c); ng > 0 && nc > 0 {
 		scale = ng / nc
@@ -153,13 +161,15 @@ func shiftedRoots(n int, g, c []float64) ([]complex128, error) {
 			mData[i*n+j] = col[i]
 		}
 	}
-	var eig mat.Eigen
-	if !eig.Factorize(mat.NewDense(n, n, mData), mat.EigenNone) {
+	lambda, ok := eig(n, mData, make([]complex128, 0, n))
+	if !ok {
 		return nil, fmt.Errorf("dense: PencilRoots: eigenvalue iteration on (G + σ·C)⁻¹·C did not converge (n = %d, σ = %g)", n, sigma)
 	}
-	lambda := eig.Values(nil)
 	maxAbs := 0.0
 	for _, l := range lambda {
+		if !isFiniteC(l) {
+			return nil, fmt.Errorf("dense: PencilRoots: eigenvalue %v of (G + σ·C)⁻¹·C is not finite (n = %d, σ = %g)", l, n, sigma)
+		}
 		maxAbs = math.Max(maxAbs, cmplx.Abs(l))
 	}
 	roots := make([]complex128, 0, n)
@@ -181,14 +191,29 @@ func shiftedRoots(n int, g, c []float64) ([]complex128, error) {
 		re, im := real(s), math.Abs(imag(s))
 		roots = append(roots, complex(re, -im), complex(re, im))
 	}
-	slices.SortFunc(roots, func(x, y complex128) int {
-		if c := cmp.Compare(cmplx.Abs(x), cmplx.Abs(y)); c != 0 {
-			return c
-		}
-		if c := cmp.Compare(real(x), real(y)); c != 0 {
-			return c
-		}
-		return cmp.Compare(imag(x), imag(y))
-	})
+	sortRoots(roots)
 	return roots, nil
+}
+
+// sortRoots orders roots by |s|, then real part, then imaginary part. An
+// insertion sort: there are at most a dozen or so, and a generic sort would
+// add some 15 kB to the WebAssembly engine for this one call.
+func sortRoots(roots []complex128) {
+	less := func(x, y complex128) bool {
+		if ax, ay := cmplx.Abs(x), cmplx.Abs(y); ax != ay {
+			return ax < ay
+		}
+		if real(x) != real(y) {
+			return real(x) < real(y)
+		}
+		return imag(x) < imag(y)
+	}
+	for i := 1; i < len(roots); i++ {
+		r := roots[i]
+		j := i
+		for ; j > 0 && less(r, roots[j-1]); j-- {
+			roots[j] = roots[j-1]
+		}
+		roots[j] = r
+	}
 }

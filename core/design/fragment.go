@@ -3,7 +3,6 @@ package design
 import (
 	"errors"
 	"math"
-	"net/url"
 	"slices"
 	"strconv"
 	"strings"
@@ -80,7 +79,7 @@ func Decode(fragment string) (Design, error) {
 			continue
 		}
 		rawKey, rawValue, hasEquals := strings.Cut(pair, "=")
-		key, err := url.PathUnescape(rawKey)
+		key, err := pathUnescape(rawKey)
 		if err != nil {
 			report(pos, rawKey, rawValue, "the key has a bad percent escape ("+escapeReason(err)+")")
 			continue
@@ -102,7 +101,7 @@ func Decode(fragment string) (Design, error) {
 			maxChars = MaxFragmentBytes
 		}
 		value, valueProblem := rawValue, ""
-		if v, err := url.PathUnescape(rawValue); err != nil {
+		if v, err := pathUnescape(rawValue); err != nil {
 			valueProblem = "the value has a bad percent escape (" + escapeReason(err) + ")"
 		} else if value = v; utf8.RuneCountInString(value) > maxChars {
 			valueProblem = "the value is " + strconv.Itoa(utf8.RuneCountInString(value)) +
@@ -362,7 +361,7 @@ func rangeMessage(sp span, integer, infOK bool, label, unit, zeroMeans string) s
 }
 
 func escapeReason(err error) string {
-	var ee url.EscapeError
+	var ee escapeError
 	if errors.As(err, &ee) {
 		return "invalid escape " + strconv.Quote(string(ee))
 	}

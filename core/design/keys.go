@@ -2,7 +2,6 @@ package design
 
 import (
 	"math"
-	"net/url"
 	"slices"
 	"strconv"
 	"strings"
@@ -945,7 +944,7 @@ func hasPin(fragment string) bool {
 		var pair string
 		pair, rest, _ = strings.Cut(rest, "&")
 		key, _, _ := strings.Cut(pair, "=")
-		if k, err := url.PathUnescape(key); err == nil && k == "pin" {
+		if k, err := pathUnescape(key); err == nil && k == "pin" {
 			return true
 		}
 	}

@@ -1,9 +1,8 @@
 package transfer
 
 import (
-	"encoding/json"
-
 	"stagewright/core/design"
+	"stagewright/core/jsonenc"
 )
 
 type runJSON struct {
@@ -49,7 +48,7 @@ func (tr Trace) MarshalJSON() ([]byte, error) {
 	for i, r := range tr.Runs {
 		j.Runs[i] = runJSON(r)
 	}
-	return json.Marshal(j)
+	return jsonenc.Marshal(j)
 }
 
 type linearityJSON struct {
@@ -68,7 +67,7 @@ type linearityJSON struct {
 // MarshalJSON writes {amp, hd2, hd3, thd, hd2_db, hd3_db, thd_db,
 // taylor_hd2, taylor_hd3, small_signal_ok}, non-finite numbers as null.
 func (l Linearity) MarshalJSON() ([]byte, error) {
-	return json.Marshal(linearityJSON{
+	return jsonenc.Marshal(linearityJSON{
 		Amp: design.Num(l.Amp), HD2: design.Num(l.HD2), HD3: design.Num(l.HD3), THD: design.Num(l.THD),
 		HD2dB: design.Num(l.HD2dB), HD3dB: design.Num(l.HD3dB), THDdB: design.Num(l.THDdB),
 		TaylorHD2: design.Num(l.TaylorHD2), TaylorHD3: design.Num(l.TaylorHD3), SmallSignalOK: l.SmallSignalOK,

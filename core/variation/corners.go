@@ -71,8 +71,13 @@ func Corners(d design.Design) ([]CornerRow, error) {
 	}
 	temps := CornerTemps[:]
 	if !slices.Contains(temps, d.Temp) {
-		temps = append(slices.Clone(temps), d.Temp)
-		slices.Sort(temps)
+		// Insert in order (a handful of temperatures; a generic sort of
+		// float64 would add some 13 kB to the WebAssembly engine).
+		i := 0
+		for i < len(temps) && temps[i] < d.Temp {
+			i++
+		}
+		temps = slices.Insert(slices.Clone(temps), i, d.Temp)
 	}
 	names := device.CornerNames()
 	rows := make([]CornerRow, 0, len(names)*len(temps))

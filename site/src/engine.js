@@ -2,22 +2,17 @@
 // checks its version against the bundle's, and coalesces evaluations so only
 // the newest design is computed while the engine is busy.
 import workerSource from 'stagewright:worker';
+import { unpack } from './pack.js';
 
 /* global STAGEWRIGHT_VERSION */
 export const PAGE_VERSION = typeof STAGEWRIGHT_VERSION === 'string' ? STAGEWRIGHT_VERSION : 'dev';
 
-function base64ToBytes(b64) {
-  if (typeof Uint8Array.fromBase64 === 'function') return Uint8Array.fromBase64(b64);
-  const bin = atob(b64);
-  const out = new Uint8Array(bin.length);
-  for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
-  return out;
-}
-
 /** Finds the gzip-compressed WebAssembly: inlined in the page, or beside it. */
 async function loadWasmGz() {
   const inline = document.getElementById('stagewright-wasm');
-  if (inline) return base64ToBytes(inline.textContent.trim()).buffer;
+  // Packed text (src/pack.js), not trimmed: it may begin or end with
+  // whitespace-class characters that are data.
+  if (inline) return unpack(inline.textContent).buffer;
   const r = await fetch(new URL('stagewright.wasm.gz', document.baseURI));
   if (!r.ok) throw new Error(`stagewright.wasm.gz: HTTP ${r.status}`);
   return r.arrayBuffer();
