@@ -170,7 +170,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   const err = response.error;
   if (!r) {
     status(`No result: ${err ? err.message : 'the engine gave no answer'}`, 'bad');
-    state.values = new Map();
+    if (fragment === state.requested) state.values = new Map(); // see `latest` below
     const d = (k) => schemaDefault(k, undefined);
     state.controls.show(state.values, { stage: d('stage'), load: d('load'), bias: d('bias') });
     state.renderGeneration++;
@@ -188,13 +188,18 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   if (r.ok) state.plots.noise.update(r);
   const proc = fragmentMap(state.canonical).get('proc');
   if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
-  state.values = fragmentMap(state.canonical);
+  // A result for an older request (a newer one is on its way) must not put
+  // its values back into the controls: an edit made meanwhile would be lost
+  // when the next edit is built from them. Only the newest request's
+  // canonical form replaces what the user has set.
+  const latest = fragment === state.requested;
+  if (latest) state.values = fragmentMap(state.canonical);
   const problems = [...pageProblems, ...(r.problems || [])];
   const bad = new Set(problems.map((p) => p.key));
   const v = (k) => state.values.get(k) ?? schemaDefault(k);
   const pick = { stage: v('stage'), load: v('load'), bias: v('bias') };
   state.controls.show(state.values, pick, bad);
-  if (!fromLink && !problems.length && state.canonical) writeLink(state.canonical, link.timer === null);
+  if (latest && !fromLink && !problems.length && state.canonical) writeLink(state.canonical, link.timer === null);
   showNotice(fragment, problems, null); // an evaluation failure is shown in the status line
   const rs = parseSI(v('rs') || '0').value || 0;
   const rl = v('rl') === 'inf' ? Infinity : parseSI(v('rl') || 'inf').value ?? Infinity;

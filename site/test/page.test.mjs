@@ -97,6 +97,41 @@ test('a slider step patches the result tables in place and writes the link once 
   assert.equal(hash, await page.evaluate(() => window.stagewrightPage.canonical()));
 });
 
+test('an edit made while an older result is drawn keeps the newer edits (no stale values from that result)', async () => {
+  await open(page, 'v=1&stage=cs&load=r&rd=10k&id=20u');
+  // Twelve moves of the rsig slider at once: the engine computes the first
+  // and queues the last. The moment the first one's result is drawn (the
+  // last still computing), the cl slider moves: that edit must carry the
+  // twelfth rsig value, not the first result's.
+  const wanted = await page.evaluate(
+    () =>
+      new Promise((resolve) => {
+        const rsig = document.getElementById('k-rsig-slider');
+        const cl = document.getElementById('k-cl-slider');
+        const n0 = Number(document.body.dataset.evaluations);
+        const seen = new MutationObserver(() => {
+          if (Number(document.body.dataset.evaluations) !== n0 + 1) return;
+          seen.disconnect();
+          cl.value = String(Number(cl.value) + 1);
+          cl.dispatchEvent(new Event('input', { bubbles: true }));
+          resolve(last);
+        });
+        seen.observe(document.body, { attributes: true, attributeFilter: ['data-evaluations'] });
+        let last = '';
+        for (let i = 0; i < 12; i++) {
+          rsig.value = String(Number(rsig.value) + 1);
+          rsig.dispatchEvent(new Event('input', { bubbles: true }));
+          last = document.getElementById('k-rsig').value; // the slider's input handler writes its value here
+        }
+      }),
+  );
+  await page.waitForFunction(() => document.body.dataset.busy !== 'true' && document.body.dataset.state === 'ready');
+  const design = await page.evaluate(() => window.stagewrightPage.canonical());
+  const rsig = /(?:^|&)rsig=([^&]*)/.exec(design)[1];
+  assert.equal(parseSI(rsig).value, parseSI(wanted).value, `the twelfth move set rsig to ${wanted}; the design holds rsig=${rsig}`);
+  assert.equal(parseSI(await page.inputValue('#k-rsig')).value, parseSI(wanted).value, 'the rsig field does not show the design');
+});
+
 test('typing SI values in a field, and rejecting nonsense', async () => {
   await open(page, 'v=1&stage=cs&load=r');
   const field = page.locator('#k-rd');
