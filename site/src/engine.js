@@ -53,10 +53,17 @@ export class Engine {
 
   /** Starts the worker; resolves with {version, initMs}, rejects with a readable reason. */
   async start() {
-    const gz = await loadWasmGz();
+    // The worker first, so that its script compiles while this thread
+    // unpacks the WebAssembly from the page.
     const url = URL.createObjectURL(new Blob([workerSource], { type: 'text/javascript' }));
     this.worker = new Worker(url);
     URL.revokeObjectURL(url);
+    let failed = null;
+    this.worker.onerror = (e) => {
+      failed = new Error(`engine worker failed: ${e.message || 'unknown error'}`);
+    };
+    const gz = await loadWasmGz();
+    if (failed) throw failed;
     return new Promise((resolve, reject) => {
       this.worker.onerror = (e) => reject(new Error(`engine worker failed: ${e.message || 'unknown error'}`));
       this.worker.onmessage = (e) => {

@@ -11,19 +11,44 @@
 
 let api = null;
 
-async function gunzip(buf) {
-  const stream = new Blob([buf]).stream().pipeThrough(new DecompressionStream('gzip'));
-  return new Response(stream).arrayBuffer();
+function gunzipped(buf) {
+  return new Blob([buf]).stream().pipeThrough(new DecompressionStream('gzip'));
+}
+
+// Compiles while the bytes are still being decompressed (a Response made
+// from the stream, typed application/wasm); where streaming compilation is
+// missing, decompresses first and compiles the whole buffer.
+async function instantiate(gz, imports) {
+  if (typeof WebAssembly.instantiateStreaming === 'function') {
+    const streamed = new Response(gunzipped(gz), { headers: { 'Content-Type': 'application/wasm' } });
+    return WebAssembly.instantiateStreaming(streamed, imports);
+  }
+  const bytes = await new Response(gunzipped(gz)).arrayBuffer();
+  return WebAssembly.instantiate(bytes, imports);
+}
+
+/** The ArrayBuffers of the typed arrays in response.result.ac and .noise, to move instead of copy. */
+function seriesBuffers(response) {
+  const out = [];
+  const r = response && response.result;
+  if (!r) return out;
+  for (const part of [r.ac, r.noise]) {
+    if (!part) continue;
+    for (const v of Object.values(part)) {
+      // only an array that owns its whole buffer (never a view into the engine's memory)
+      if (ArrayBuffer.isView(v) && v.byteOffset === 0 && v.byteLength === v.buffer.byteLength && !out.includes(v.buffer)) out.push(v.buffer);
+    }
+  }
+  return out;
 }
 
 async function start(msg) {
   const t0 = performance.now();
-  const bytes = await gunzip(msg.gz);
   const go = new Go();
   const ready = new Promise((resolve) => {
     self.stagewrightReady = resolve;
   });
-  const { instance } = await WebAssembly.instantiate(bytes, go.importObject);
+  const { instance } = await instantiate(msg.gz, go.importObject);
   go.run(instance).then(() => {
     self.postMessage({ type: 'fatal', message: 'the Go runtime stopped' });
   });
@@ -49,6 +74,6 @@ self.onmessage = (e) => {
     } catch (err) {
       response = { error: { code: 'internal', message: String((err && err.message) || err) } };
     }
-    self.postMessage({ type: 'reply', id: msg.id, response, ms: performance.now() - t0 });
+    self.postMessage({ type: 'reply', id: msg.id, response, ms: performance.now() - t0 }, seriesBuffers(response));
   }
 };
