@@ -12,7 +12,7 @@ WASM_EXEC_DIR := $(GOROOT_DIR)/lib/wasm
 STAGEWRIGHT_VERSION := $(shell git describe --always --dirty 2>/dev/null || echo dev)
 SERVE_ADDR ?= 127.0.0.1:8080
 
-.PHONY: site run test-web test-wasm test-browser test-long chromium-check wasm-engine site-deps bench-web
+.PHONY: site run test-web test-wasm test-browser chromium-check wasm-engine site-deps bench-web
 
 # npm ci installs exactly the lock file; it runs again when the lock changes.
 site/node_modules/.package-lock.json: site/package.json site/package-lock.json
@@ -48,11 +48,6 @@ test-browser: chromium-check site
 	cd site && CHROMIUM='$(CHROMIUM)' $(NODE) --test --test-concurrency=1 test/*.test.mjs
 
 test-web: chromium-check test-wasm test-browser
-
-# The long session (10,000 slider moves; heap and WebAssembly memory after
-# warm-up and at the end), a few minutes: not part of make test.
-test-long: chromium-check site
-	cd site && CHROMIUM='$(CHROMIUM)' $(NODE) --test --test-concurrency=1 test/session.long.mjs
 
 # Page benchmark: cold open to first plot, slider step latency, single-file
 # size (writes site/dist/bench.json, which `make bench` puts in its table).

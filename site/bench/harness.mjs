@@ -1,5 +1,5 @@
 // Helpers shared by the browser benchmark (bench.mjs) and the hardening
-// tests (test/hostile.test.mjs, test/session.long.mjs): Debian's Chromium
+// tests (test/hostile.test.mjs, test/session.test.mjs): Debian's Chromium
 // with extra flags in a fresh profile, and a DevTools session on the
 // engine's Worker to read its WebAssembly memory.
 //
