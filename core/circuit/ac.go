@@ -71,6 +71,7 @@ type Analyzer struct {
 	b, z, x      []complex128
 	lu, luIn     dense.CLU
 	luOut        dense.CLU
+	terms        []noiseTerm // the small sweep's noise sources
 }
 
 func (a *Analyzer) size(n int) {
