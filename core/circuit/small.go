@@ -3,6 +3,8 @@ package circuit
 import (
 	"math"
 	"math/cmplx"
+
+	"stagewright/core/fastmath"
 )
 
 // sweepSmall is the sweep for networks of one to three free nodes, which is
@@ -63,16 +65,23 @@ func (a *Analyzer) sweepSmall(nw *Network, r *Response) {
 		a.terms = append(a.terms, noiseTerm{p: p, white: s.White, flicker: s.Flicker})
 	}
 
+	// The loop stores each point as store does, written out in place: a
+	// call per point costs more than the arithmetic under js/wasm.
+	nf := len(r.F)
+	freq, gain, magDB, phase := r.F[:nf], r.Gain[:nf], r.MagDB[:nf], r.PhaseDeg[:nf]
+	zinOut, zoutOut, noiseOut, noiseIn := r.Zin[:nf], r.Zout[:nf], r.NoiseOut[:nf], r.NoiseIn[:nf]
+	lnOutS, lnInS := r.lnOut[:nf], r.lnIn[:nf]
+	terms := a.terms
 	prev := 0.0
-	for k, f := range r.F {
+	for k, f := range freq {
 		w := 2 * math.Pi * f
 		w2 := w * w
 		d := det.at(w, w2)
 		inv := recip(d)
 		h := num.at(w, w2) * inv
 		noise := 0.0
-		for i := range a.terms {
-			t := &a.terms[i]
+		for i := range terms {
+			t := &terms[i]
 			v := t.p.at(w, w2)
 			noise += (t.white + t.flicker/f) * (real(v)*real(v) + imag(v)*imag(v))
 		}
@@ -82,7 +91,37 @@ func (a *Analyzer) sweepSmall(nw *Network, r *Response) {
 		if di := detIn.at(w, w2); di != 0 {
 			zin = absQuo(cofIn.at(w, w2), di)
 		}
-		a.store(r, k, h, zin, zout, noise, &prev)
+
+		gain[k] = h
+		m2 := real(h)*real(h) + imag(h)*imag(h)
+		lnH2 := fastmath.Log(m2)
+		magDB[k] = lnH2 * (10 / math.Ln10)
+		if m2 == 0 {
+			magDB[k] = -400
+		}
+		ph := fastmath.Atan2(imag(h), real(h)) * (180 / math.Pi)
+		if k > 0 {
+			for ph-prev > 180 {
+				ph -= 360
+			}
+			for ph-prev < -180 {
+				ph += 360
+			}
+		}
+		prev = ph
+		phase[k] = ph
+		zinOut[k] = zin
+		zoutOut[k] = zout
+		sn := math.Sqrt(noise)
+		noiseOut[k] = sn
+		lnOut := fastmath.Log(noise)
+		lnOutS[k] = lnOut
+		lnInS[k] = lnOut - lnH2
+		if m2 > 0 {
+			noiseIn[k] = sn / math.Sqrt(m2)
+		} else {
+			noiseIn[k] = math.Inf(1)
+		}
 	}
 }
 
@@ -133,8 +172,11 @@ func absQuo(a, b complex128) float64 {
 	if nb > lo && nb < hi && (na == 0 || na > lo && na < hi) {
 		return math.Sqrt(na / nb)
 	}
-	return cmplx.Abs(a / b)
+	return absQuoSlow(a, b)
 }
+
+//go:noinline
+func absQuoSlow(a, b complex128) float64 { return cmplx.Abs(a / b) }
 
 // recip is 1/z by the plain formula, which is safe for the admittance
 // scales of a circuit (no overflow of |z|² between 1e-150 and 1e150) and
