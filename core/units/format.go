@@ -122,16 +122,16 @@ func shortDecimal(v float64) (scientific, bool) {
 	if a < 0 {
 		a, d.negative = -a, true
 	}
-	// exp10 = ⌊log10 a⌋, from a first guess corrected against exact powers.
-	x := int(math.Floor(math.Log10(a)))
+	// exp10 = ⌊log10 a⌋: ⌊e2·log10 2⌋ from the binary exponent e2 (by the
+	// integer product e2·78913/2^18, exact over this range), which is the
+	// answer or one below it; a guess that is still off makes every
+	// candidate fail the digit count below, which only sends v to strconv.
+	x := (int(math.Float64bits(a)>>52&0x7ff) - 1023) * 78913 >> 18
 	if x < -22 || x > 22 {
 		return d, false
 	}
-	if x >= 0 && a < pow10[x] || x < 0 && a*pow10[-x] < 1 {
-		x--
-	}
-	if x >= 0 && x+1 <= 22 && a >= pow10[x+1] || x < 0 && -x-1 <= 22 && a*pow10[-x-1] >= 10 {
-		x++
+	if x+1 >= 0 && x+1 <= 22 && a >= pow10[x+1] || x+1 < 0 && a*pow10[-x-1] >= 1 {
+		x++ // a ≥ 10^(x+1)
 	}
 	for n := 1; n <= 15; n++ {
 		e := x - n + 1
