@@ -5,6 +5,7 @@ import (
 	"math/cmplx"
 
 	"stagewright/core/dense"
+	"stagewright/core/fastmath"
 )
 
 // Response holds a frequency sweep. The caller sizes every slice to the
@@ -71,6 +72,7 @@ type Analyzer struct {
 	b, z, x      []complex128
 	lu, luIn     dense.CLU
 	luOut        dense.CLU
+	terms        []noiseTerm // the small sweep's noise sources
 }
 
 func (a *Analyzer) size(n int) {
@@ -170,12 +172,12 @@ func (a *Analyzer) store(r *Response, k int, h complex128, zin, zout, noise floa
 	// integration works on these logs (NoiseRMS), so a point costs two
 	// logarithms and one arctangent, the only transcendental functions left.
 	m2 := real(h)*real(h) + imag(h)*imag(h)
-	lnH2 := math.Log(m2)
+	lnH2 := fastmath.Log(m2)
 	r.MagDB[k] = lnH2 * (10 / math.Ln10)
 	if m2 == 0 {
 		r.MagDB[k] = -400
 	}
-	ph := math.Atan2(imag(h), real(h)) * (180 / math.Pi)
+	ph := fastmath.Atan2(imag(h), real(h)) * (180 / math.Pi)
 	if k > 0 {
 		for ph-*prevPhase > 180 {
 			ph -= 360
@@ -189,7 +191,7 @@ func (a *Analyzer) store(r *Response, k int, h complex128, zin, zout, noise floa
 	r.Zin[k] = zin
 	r.Zout[k] = zout
 	r.NoiseOut[k] = math.Sqrt(noise)
-	lnOut := math.Log(noise)
+	lnOut := fastmath.Log(noise)
 	r.lnOut[k] = lnOut
 	r.lnIn[k] = lnOut - lnH2
 	if m2 > 0 {

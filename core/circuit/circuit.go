@@ -93,7 +93,28 @@ type Circuit struct {
 }
 
 // New returns an empty circuit with only the ground node.
-func New() *Circuit { return &Circuit{names: []string{"0"}} }
+func New() *Circuit {
+	// One allocation holds a stage-sized circuit: every element list
+	// starts in an array of the store and grows beyond it as usual.
+	s := new(circuitStore)
+	c := &s.c
+	c.names = append(s.names[:0], "0")
+	c.Resistors, c.VSources, c.ISources = s.resistors[:0], s.vsources[:0], s.isources[:0]
+	c.Caps, c.FETs, c.Servos = s.caps[:0], s.fets[:0], s.servos[:0]
+	return c
+}
+
+// circuitStore is a circuit with room for the elements of a stage.
+type circuitStore struct {
+	c         Circuit
+	names     [8]string
+	resistors [6]Resistor
+	vsources  [5]VSource
+	isources  [2]ISource
+	caps      [4]Capacitor
+	fets      [3]FET
+	servos    [3]Servo
+}
 
 // AddNode adds a named node and returns it.
 func (c *Circuit) AddNode(name string) Node {

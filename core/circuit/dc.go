@@ -3,6 +3,7 @@ package circuit
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"stagewright/core/dense"
 	"stagewright/core/device"
@@ -81,21 +82,41 @@ type dcSystem struct {
 	gmin    float64
 	scale   float64
 	evals   []device.Eval // each transistor's current and derivatives at the present iterate
+	start   []float64     // the initial iterate
+	buf     []float64     // storage of x, dx, f, fabs, start and j
 }
 
+// dcSystems keeps the workspaces of finished solves (and the storage their
+// LU has grown), so that a solve does not allocate them again. Every field
+// a solve reads is set before it is read: nothing carries over from one
+// solve to the next but memory.
+var dcSystems = sync.Pool{New: func() any { return new(dcSystem) }}
+
 func newDCSystem(c *Circuit, opt Options) *dcSystem {
-	s := &dcSystem{c: c, opt: opt}
+	s := dcSystems.Get().(*dcSystem)
+	s.c, s.opt = c, opt
 	s.nn = len(c.names) - 1
 	s.nb = len(c.VSources)
 	s.ns = len(c.Servos)
 	s.n = s.nn + s.nb + s.ns
-	s.x = make([]float64, s.n)
-	s.dx = make([]float64, s.n)
-	s.f = make([]float64, s.n)
-	s.fabs = make([]float64, s.n)
-	s.j = make([]float64, s.n*s.n)
-	s.evals = make([]device.Eval, len(c.FETs))
-	s.servoOf = make([]int, s.nb)
+	s.gmin, s.scale = 0, 0
+	n := s.n
+	if cap(s.buf) < 5*n+n*n {
+		s.buf = make([]float64, 5*n+n*n)
+	}
+	b := s.buf[:5*n+n*n]
+	clear(b)
+	s.x, s.dx, s.f, s.fabs, s.start = b[:n:n], b[n:2*n:2*n], b[2*n:3*n:3*n], b[3*n:4*n:4*n], b[4*n:5*n:5*n]
+	s.j = b[5*n:]
+	if cap(s.evals) < len(c.FETs) {
+		s.evals = make([]device.Eval, len(c.FETs))
+	}
+	s.evals = s.evals[:len(c.FETs)]
+	clear(s.evals)
+	if cap(s.servoOf) < s.nb {
+		s.servoOf = make([]int, s.nb)
+	}
+	s.servoOf = s.servoOf[:s.nb]
 	for i := range s.servoOf {
 		s.servoOf[i] = -1
 	}
@@ -103,6 +124,12 @@ func newDCSystem(c *Circuit, opt Options) *dcSystem {
 		s.servoOf[sv.Source] = i
 	}
 	return s
+}
+
+// release returns s to the pool; s must not be used afterwards.
+func (s *dcSystem) release() {
+	s.c = nil
+	dcSystems.Put(s)
 }
 
 func (s *dcSystem) v(n Node) float64 {
@@ -340,7 +367,8 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 	}
 	opt = opt.withDefaults()
 	s := newDCSystem(c, opt)
-	start := make([]float64, s.n)
+	defer s.release()
+	start := s.start
 	for n, v := range guess {
 		if k := idx(n); k >= 0 && k < s.nn {
 			start[k] = v

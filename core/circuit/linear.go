@@ -78,6 +78,19 @@ func (nw *Network) FreeIndex(n Node) int {
 // Name is the node name of free unknown i.
 func (nw *Network) Name(i int) string { return nw.names[i] }
 
+// smallNodes is the number of free nodes a networkStore has room for.
+const smallNodes = 3
+
+// networkStore is a network with room for a stage.
+type networkStore struct {
+	nw       Network
+	free     [8]int
+	names    [smallNodes]string
+	matrices [2*smallNodes*smallNodes + 2*smallNodes]float64 // G, C, GSig, CSig
+	noise    [6]NoiseSource
+	devices  [2]device.Report
+}
+
 // Linearize builds the small-signal network of c at op, at temperature
 // tempK (for resistor noise), with the given ports.
 func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Network, error) {
@@ -105,7 +118,17 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 	if sigNode == Ground {
 		sigNode = sigSrc.N
 	}
-	nw := &Network{free: make([]int, nodes)}
+	// One allocation holds the network of a stage (up to smallNodes free
+	// nodes); a larger one allocates its slices.
+	st := new(networkStore)
+	nw := &st.nw
+	nw.free = st.free[:0]
+	for range nodes {
+		nw.free = append(nw.free, 0)
+	}
+	nw.names = st.names[:0]
+	nw.Noise = st.noise[:0]
+	nw.Devices = st.devices[:0]
 	for i := range nw.free {
 		nw.free[i] = -1
 		if !driven[i] {
@@ -115,10 +138,12 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 		}
 	}
 	n := nw.N
-	nw.G = make([]float64, n*n)
-	nw.C = make([]float64, n*n)
-	nw.GSig = make([]float64, n)
-	nw.CSig = make([]float64, n)
+	m := st.matrices[:0]
+	if n > smallNodes {
+		m = make([]float64, 0, 2*n*n+2*n)
+	}
+	m = m[:2*n*n+2*n]
+	nw.G, nw.C, nw.GSig, nw.CSig = m[:n*n:n*n], m[n*n:2*n*n:2*n*n], m[2*n*n:2*n*n+n:2*n*n+n], m[2*n*n+n:]
 	nw.In, nw.Out = nw.FreeIndex(ports.In), nw.FreeIndex(ports.Out)
 
 	// stamp adds a two-terminal admittance y between a and b into m, and

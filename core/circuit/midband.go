@@ -2,6 +2,7 @@ package circuit
 
 import (
 	"math"
+	"sync"
 
 	"stagewright/core/dense"
 )
@@ -23,7 +24,14 @@ func (nw *Network) Midband() (Midband, error) {
 	if nw.Out < 0 {
 		return m, errNoPort("output")
 	}
-	x := make([]float64, n)
+	// Room on the stack for a stage's network.
+	var xs [smallNodes]float64
+	var gs [smallNodes * smallNodes]float64
+	x, g := xs[:0], gs[:0]
+	if n > smallNodes {
+		x, g = make([]float64, 0, n), make([]float64, 0, n*n)
+	}
+	x = x[:n]
 	for i := range x {
 		x[i] = -nw.GSig[i]
 	}
@@ -34,17 +42,26 @@ func (nw *Network) Midband() (Midband, error) {
 	lu.Solve(x, x)
 	m.Gain = x[nw.Out]
 	if nw.In >= 0 {
-		g := append([]float64(nil), nw.G...)
+		g = append(g[:0], nw.G...)
 		g[nw.In*n+nw.In] -= nw.RSigG
 		m.Rin = driveResistance(g, n, nw.In)
 	} else {
 		m.Rin = math.Inf(1)
 	}
-	g := append([]float64(nil), nw.G...)
+	g = append(g[:0], nw.G...)
 	g[nw.Out*n+nw.Out] -= nw.RLG
 	m.Rout = driveResistance(g, n, nw.Out)
 	return m, nil
 }
+
+// driveWork is the workspace of driveResistance, kept between calls in
+// driveScratch (every entry is written before it is read).
+type driveWork struct {
+	lu  dense.LU
+	buf []float64
+}
+
+var driveScratch = sync.Pool{New: func() any { return new(driveWork) }}
 
 type errNoPort string
 
@@ -55,8 +72,12 @@ func (e errNoPort) Error() string { return "midband: the " + string(e) + " node 
 // no current flows (an open port) or the rest of the network is singular.
 func driveResistance(g []float64, n, k int) float64 {
 	m := n - 1
-	sub := make([]float64, m*m)
-	rhs := make([]float64, m)
+	w := driveScratch.Get().(*driveWork)
+	defer driveScratch.Put(w)
+	if cap(w.buf) < m*m+m {
+		w.buf = make([]float64, m*m+m)
+	}
+	sub, rhs := w.buf[:m*m:m*m], w.buf[m*m:m*m+m]
 	for i, ii := 0, 0; i < n; i++ {
 		if i == k {
 			continue
@@ -72,11 +93,10 @@ func driveResistance(g []float64, n, k int) float64 {
 		ii++
 	}
 	if m > 0 {
-		var lu dense.LU
-		if err := lu.Factorize(m, sub); err != nil {
+		if err := w.lu.Factorize(m, sub); err != nil {
 			return math.Inf(1)
 		}
-		lu.Solve(rhs, rhs)
+		w.lu.Solve(rhs, rhs)
 	}
 	cur := g[k*n+k]
 	scale := math.Abs(g[k*n+k])

@@ -1,6 +1,10 @@
 package device
 
-import "math"
+import (
+	"math"
+
+	"stagewright/core/fastmath"
+)
 
 // Solving v = 2q + ln q for the normalized inversion charge q.
 //
@@ -44,7 +48,7 @@ func wrightOmega(y float64) float64 {
 		// ω = e^(y−ω) and ω < 2.4e-16, so e^(−ω) rounds to 1: ω = e^y exactly
 		// in double precision. No iteration: it would take ln of a value that
 		// may be subnormal.
-		return math.Exp(y)
+		return fastmath.Exp(y)
 	case !(y <= math.MaxFloat64): // NaN or +Inf
 		return y
 	}
@@ -52,7 +56,7 @@ func wrightOmega(y float64) float64 {
 	switch {
 	case y <= -2:
 		// Lambert series W(x) = x − x² + (3/2)x³ − … with x = e^y ≤ e⁻².
-		x := math.Exp(y)
+		x := fastmath.Exp(y)
 		w = x * (1 - x*(1-1.5*x))
 	case y <= 2:
 		// Taylor series of ω about y = 1, where ω = 1.
@@ -60,7 +64,7 @@ func wrightOmega(y float64) float64 {
 		w = 1 + t*(1.0/2+t*(1.0/16+t*(-1.0/192+t*(-1.0/3072+t*(13.0/61440)))))
 	default:
 		// ω = y − ln y + ln y / y + … for large y.
-		l := math.Log(y)
+		l := fastmath.Log(y)
 		w = y - l + l/y
 	}
 	// Each step takes the relative error e ≈ r/(1 + w) to O(e⁴); the starts
@@ -68,7 +72,7 @@ func wrightOmega(y float64) float64 {
 	// result is exact to rounding, so the loop stops without another log;
 	// it never needs more than three steps.
 	for i := 0; i < 3; i++ {
-		r := y - w - math.Log(w)
+		r := y - w - fastmath.Log(w)
 		wp := 1 + w
 		z := 2 * wp * (wp + 2*r/3)
 		w *= 1 + r/wp*(z-r)/(z-2*r)

@@ -3,6 +3,8 @@ package device
 import (
 	"fmt"
 	"math"
+
+	"stagewright/core/fastmath"
 )
 
 // Physical constants, SI.
@@ -238,10 +240,10 @@ func softplus(x float64) (s, ds float64) {
 		return x, 1
 	}
 	if t >= 0 {
-		e := math.Exp(-t)
+		e := fastmath.Exp(-t)
 		return x + smoothWidth*math.Log1p(e), 1 / (1 + e)
 	}
-	e := math.Exp(t)
+	e := fastmath.Exp(t)
 	return smoothWidth * math.Log1p(e), e / (1 + e)
 }
 
@@ -257,7 +259,9 @@ func (d *Device) pinchOff(vg float64) (vp, dvp, n, dn float64) {
 		return (vg - d.vt0) / nf, 1 / nf, nf, 0
 	}
 	s, ds := softplus(vg + d.vgShift)
-	s = math.Max(s, 1e-300) // softplus underflows only far below threshold
+	if s < 1e-300 { // softplus underflows only far below threshold
+		s = 1e-300
+	}
 	g := d.prm.Gamma
 	r := math.Sqrt(s + g*g/4)
 	sp := s / (r + g/2) // = √(2φF + VP), free of the cancellation in r − γ/2

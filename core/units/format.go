@@ -27,7 +27,10 @@ func AppendExact(dst []byte, v float64) []byte {
 	}
 	// The shortest digits that strconv reads back as v; only the place of
 	// the decimal point changes below, so the decimal value stays the same.
-	d := splitScientific(v, -1)
+	d, ok := shortDecimal(v)
+	if !ok {
+		d = splitScientific(v, -1)
+	}
 	if d.negative {
 		dst = append(dst, '-')
 	}
@@ -88,6 +91,88 @@ type scientific struct {
 	digits   [24]byte
 	n        int // number of digits used
 	exp10    int
+}
+
+// pow10 holds the powers of ten that are exact in float64.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// shortDecimal is splitScientific(v, −1) for the values a fragment holds,
+// which are short decimals (20e-6, 1.8, 4.7e3): the shortest digits m and
+// exponent e with m·10^e read back as v, found without strconv's general
+// algorithm (whose 128-bit products are slow under js/wasm). ok is false
+// when v needs more than 15 digits or a power of ten beyond 10^±22; the
+// caller then uses strconv.
+//
+// For n = 1, 2, … digits it takes the integers m nearest v/10^e, with
+// e = exp10 − n + 1, and checks whether m·10^e reads back as v. The check is
+// exact: m < 2^53 and 10^|e| are exact doubles, so one correctly rounded
+// product or quotient is the correctly rounded value of the decimal, which
+// is what ParseFloat returns. With at most 15 digits the decimals of n
+// digits are 10^e apart, far more than the width of v's rounding interval
+// (one unit in its last place), so at most one of them reads back as v, and
+// it is the floor or the ceiling of v/10^e; the first n with one is the
+// shortest length, and that decimal is the one strconv writes.
+func shortDecimal(v float64) (scientific, bool) {
+	var d scientific
+	if v == 0 || v != v || v-v != 0 {
+		return d, false // zero (and its sign), NaN and the infinities: strconv
+	}
+	a := v
+	if a < 0 {
+		a, d.negative = -a, true
+	}
+	// exp10 = ⌊log10 a⌋: ⌊e2·log10 2⌋ from the binary exponent e2 (by the
+	// integer product e2·78913/2^18, exact over this range), which is the
+	// answer or one below it; a guess that is still off makes every
+	// candidate fail the digit count below, which only sends v to strconv.
+	x := (int(math.Float64bits(a)>>52&0x7ff) - 1023) * 78913 >> 18
+	if x < -22 || x > 22 {
+		return d, false
+	}
+	if x+1 >= 0 && x+1 <= 22 && a >= pow10[x+1] || x+1 < 0 && a*pow10[-x-1] >= 1 {
+		x++ // a ≥ 10^(x+1)
+	}
+	for n := 1; n <= 15; n++ {
+		e := x - n + 1
+		if e < -22 || e > 22 {
+			return d, false
+		}
+		var q float64
+		if e >= 0 {
+			q = a / pow10[e]
+		} else {
+			q = a * pow10[-e]
+		}
+		m0 := math.Floor(q)
+		for _, m := range [2]float64{m0, m0 + 1} {
+			var back float64
+			if e >= 0 {
+				back = m * pow10[e]
+			} else {
+				back = m / pow10[-e]
+			}
+			if back != a || m < pow10[n-1] || m > pow10[n] {
+				continue
+			}
+			if m == pow10[n] {
+				// v reads back from 10^(x+1): x, from the logarithm, was one
+				// too small (v is the double nearest a power of ten).
+				d.digits[0], d.n, d.exp10 = '1', 1, x+1
+				return d, true
+			}
+			// m has exactly n digits and no trailing zero (else n − 1
+			// digits would have read back too).
+			mi := uint64(m)
+			for i := n - 1; i >= 0; i-- {
+				d.digits[i] = byte('0' + mi%10)
+				mi /= 10
+			}
+			d.n, d.exp10 = n, x
+			return d, true
+		}
+	}
+	return d, false
 }
 
 // splitScientific writes v with strconv.AppendFloat(…, 'e', prec, 64) and

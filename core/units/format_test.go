@@ -238,3 +238,60 @@ func BenchmarkEngineering(b *testing.B) {
 		sink = Engineering(1.234567e-6, 4, "A")
 	}
 }
+
+// shortDecimal must give exactly what strconv's shortest formatting gives
+// (splitScientific(v, −1)), or decline. The arguments: every decimal of one
+// to six digits over the decades a fragment uses (1e-18 … 1e13) — the
+// values the fast path exists for, which it must accept down to 1e-22 in
+// the last digit — their
+// neighbours one unit in the last place away (which need 16 or 17 digits:
+// declined or, if accepted, the same digits), and random doubles over
+// the whole range.
+func TestShortDecimalMatchesStrconv(t *testing.T) {
+	same := func(v float64) bool {
+		got, ok := shortDecimal(v)
+		if !ok {
+			return false
+		}
+		want := splitScientific(v, -1)
+		if got != want {
+			t.Fatalf("shortDecimal(%v) = %+v, strconv gives %+v", v, got, want)
+		}
+		return true
+	}
+	rng := rand.New(rand.NewPCG(5, 5))
+	declined := 0
+	for exp := -18; exp <= 13; exp++ {
+		for i := 0; i < 4000; i++ {
+			digits := 1 + rng.IntN(6)
+			m := float64(rng.Int64N(int64(math.Pow(10, float64(digits)))))
+			v, err := strconv.ParseFloat(strconv.FormatFloat(m, 'f', 0, 64)+"e"+strconv.Itoa(exp-digits+1), 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rng.IntN(2) == 0 {
+				v = -v
+			}
+			// Accepted whenever the power of ten it needs, 10^(exp−digits+1),
+			// is exact (down to 1e-22).
+			if ok := same(v); !ok && v != 0 && exp-digits+1 >= -22 {
+				t.Fatalf("shortDecimal declined %v (%d digits), which it is meant for", v, digits)
+			}
+			for _, u := range []float64{math.Nextafter(v, math.Inf(1)), math.Nextafter(v, math.Inf(-1))} {
+				if !same(u) {
+					declined++
+				}
+			}
+		}
+	}
+	for i := 0; i < 100000; i++ {
+		v := math.Float64frombits(rng.Uint64())
+		if !same(v) {
+			declined++
+		}
+	}
+	for _, v := range []float64{0, math.Copysign(0, -1), math.Inf(1), math.Inf(-1), math.NaN(), math.MaxFloat64, math.SmallestNonzeroFloat64, 1e22, 1e23, 1e-22, 1e-23, 9.999999999999999e22} {
+		same(v)
+	}
+	t.Logf("declined %d arguments (left to strconv)", declined)
+}
