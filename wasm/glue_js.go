@@ -4,6 +4,7 @@ package main
 
 import (
 	"math"
+	"runtime"
 
 	"github.com/hack-pad/safejs"
 )
@@ -75,6 +76,14 @@ func answer(jsonObj safejs.Value, method string, args []safejs.Value) (out any) 
 		converted[i] = toArg(a, 0)
 	}
 	resp := Handle(method, converted)
+	if method != "evaluate" {
+		// An aid call (a transfer curve, a chart, a Monte Carlo step) leaves
+		// much garbage; collecting it now, between calls, keeps the next
+		// call's heap goal low, so the engine's memory (which WebAssembly
+		// never gives back) stays at its working size instead of creeping up
+		// to the largest peak a late collection allowed.
+		runtime.GC()
+	}
 	if debugStack != "" {
 		println("stagewright:", method, "recovered from a panic:\n"+debugStack)
 		debugStack = ""

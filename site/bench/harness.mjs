@@ -59,28 +59,27 @@ export async function launchWith(extraArgs = []) {
 
 /**
  * Opens a DevTools session on the page and attaches to its dedicated
- * worker (the engine). Returns {wasmBytes(), workerHeap(), detach()}.
+ * workers (the engines). Returns {workers(), wasmBytes(), workerHeap(), detach()}.
  * Call after the page has started its engine.
  */
 export async function engineProbe(context, page, { timeoutMs = 10000 } = {}) {
   const cdp = await context.newCDPSession(page);
   const waiting = new Map();
   let nextId = 1;
-  let sessionId = null;
+  const sessions = []; // every engine worker: the page's own and the design aids'
   const attached = new Promise((resolve) => {
     cdp.on('Target.attachedToTarget', (e) => {
-      if (e.targetInfo.type === 'worker' && !sessionId) {
-        sessionId = e.sessionId;
-        resolve();
-      }
+      if (e.targetInfo.type !== 'worker') return;
+      sessions.push(e.sessionId);
+      resolve();
     });
   });
   cdp.on('Target.receivedMessageFromTarget', (e) => {
-    if (e.sessionId !== sessionId) return;
+    if (!sessions.includes(e.sessionId)) return;
     const m = JSON.parse(e.message);
-    const w = waiting.get(m.id);
+    const w = waiting.get(`${e.sessionId}/${m.id}`);
     if (!w) return;
-    waiting.delete(m.id);
+    waiting.delete(`${e.sessionId}/${m.id}`);
     if (m.error) w.reject(new Error(`worker DevTools: ${m.error.message}`));
     else w.resolve(m.result);
   });
@@ -95,30 +94,39 @@ export async function engineProbe(context, page, { timeoutMs = 10000 } = {}) {
     }),
   ]);
   clearTimeout(timer);
-  const send = (method, params = {}) =>
+  const send = (sessionId, method, params = {}) =>
     new Promise((resolve, reject) => {
       const id = nextId++;
-      waiting.set(id, { resolve, reject });
+      waiting.set(`${sessionId}/${id}`, { resolve, reject });
       cdp.send('Target.sendMessageToTarget', { sessionId, message: JSON.stringify({ id, method, params }) }).catch(reject);
     });
+  const sum = async (each) => (await Promise.all(sessions.map(each))).reduce((a, b) => a + b, 0);
   return {
-    /** Bytes of every WebAssembly.Memory alive in the worker, summed. */
+    /** How many engine workers the page runs. */
+    workers: () => sessions.length,
+    /** Bytes of every WebAssembly.Memory alive in the engine workers, summed. */
     async wasmBytes() {
-      const proto = await send('Runtime.evaluate', { expression: 'WebAssembly.Memory.prototype' });
-      const list = await send('Runtime.queryObjects', { prototypeObjectId: proto.result.objectId });
-      const sizes = await send('Runtime.callFunctionOn', {
-        objectId: list.objects.objectId,
-        functionDeclaration: 'function () { return this.map((m) => m.buffer.byteLength); }',
-        returnByValue: true,
+      const total = await sum(async (sid) => {
+        const proto = await send(sid, 'Runtime.evaluate', { expression: 'WebAssembly.Memory.prototype' });
+        const list = await send(sid, 'Runtime.queryObjects', { prototypeObjectId: proto.result.objectId });
+        const sizes = await send(sid, 'Runtime.callFunctionOn', {
+          objectId: list.objects.objectId,
+          functionDeclaration: 'function () { return this.map((m) => m.buffer.byteLength); }',
+          returnByValue: true,
+        });
+        const values = sizes.result.value;
+        return Array.isArray(values) ? values.reduce((a, b) => a + b, 0) : 0;
       });
-      const values = sizes.result.value;
-      if (!Array.isArray(values) || values.length === 0) throw new Error('no WebAssembly.Memory found in the engine worker');
-      return values.reduce((a, b) => a + b, 0);
+      if (total === 0) throw new Error('no WebAssembly.Memory found in the engine workers');
+      return total;
     },
-    /** The worker's JavaScript heap after a collection: {usedSize, totalSize, …} in bytes. */
+    /** The engine workers' JavaScript heaps after a collection, summed: {usedSize} in bytes. */
     async workerHeap() {
-      await send('HeapProfiler.collectGarbage').catch(() => {});
-      return send('Runtime.getHeapUsage');
+      const usedSize = await sum(async (sid) => {
+        await send(sid, 'HeapProfiler.collectGarbage').catch(() => {});
+        return (await send(sid, 'Runtime.getHeapUsage')).usedSize;
+      });
+      return { usedSize };
     },
     async detach() {
       await cdp.detach().catch(() => {});

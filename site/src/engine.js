@@ -51,19 +51,37 @@ export class Engine {
     this.version = null;
   }
 
-  /** Starts the worker; resolves with {version, initMs}, rejects with a readable reason. */
+  /**
+   * Starts the worker from the WebAssembly in the page; resolves with
+   * {version, initMs, module} (module: the compiled engine, for startFrom),
+   * rejects with a readable reason.
+   */
   async start() {
     // The worker first, so that its script compiles while this thread
     // unpacks the WebAssembly from the page.
+    this.spawn();
+    const gz = await loadWasmGz();
+    if (this.failed) throw this.failed;
+    return this.boot({ type: 'init', gz }, [gz]);
+  }
+
+  /** Starts a second engine in its own worker from a module another engine compiled. */
+  async startFrom(module) {
+    this.spawn();
+    return this.boot({ type: 'init', module }, []);
+  }
+
+  spawn() {
     const url = URL.createObjectURL(new Blob([workerSource], { type: 'text/javascript' }));
     this.worker = new Worker(url);
     URL.revokeObjectURL(url);
-    let failed = null;
+    this.failed = null;
     this.worker.onerror = (e) => {
-      failed = new Error(`engine worker failed: ${e.message || 'unknown error'}`);
+      this.failed = new Error(`engine worker failed: ${e.message || 'unknown error'}`);
     };
-    const gz = await loadWasmGz();
-    if (failed) throw failed;
+  }
+
+  boot(init, transfer) {
     return new Promise((resolve, reject) => {
       this.worker.onerror = (e) => reject(new Error(`engine worker failed: ${e.message || 'unknown error'}`));
       this.worker.onmessage = (e) => {
@@ -80,7 +98,7 @@ export class Engine {
           reject(new Error(m.message));
         }
       };
-      this.worker.postMessage({ type: 'init', gz }, [gz]);
+      this.worker.postMessage(init, transfer);
     });
   }
 

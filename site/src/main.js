@@ -15,6 +15,31 @@ import { startAids } from './aids/index.js';
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
 
+// The design aids get an engine of their own in a second worker (started
+// from the module the first one compiled, once the first result is drawn),
+// so that a slider never waits behind a transfer curve, a chart or a Monte
+// Carlo step. Until it runs, or if it cannot start, they use the first.
+const aidEngine = {
+  ready: null,
+  call(method, ...args) {
+    return (this.ready || Promise.resolve(state.engine)).then((e) => e.call(method, ...args));
+  },
+  start(module) {
+    if (this.ready || !module) return;
+    this.ready = (async () => {
+      try {
+        const e = new Engine();
+        await e.startFrom(module);
+        document.body.dataset.aidEngine = 'own';
+        return e;
+      } catch {
+        document.body.dataset.aidEngine = 'shared';
+        return state.engine;
+      }
+    })();
+  },
+};
+
 const state = {
   engine: new Engine(),
   controls: null,
@@ -350,10 +375,11 @@ async function main() {
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
   setupToolbar();
-  state.aids = startAids({ engine: state.engine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
   let schemaReady;
+  let info;
   try {
-    const info = await starting;
+    info = await starting;
     document.body.dataset.engineMs = String(Math.round(info.initMs));
     const proc = fragmentMap(currentHash()).get('proc');
     schemaReady = loadSchema(proc && /^[a-z0-9]{1,16}$/.test(proc) ? proc : 'd180').catch(() => loadSchema('d180'));
@@ -369,7 +395,8 @@ async function main() {
     evaluate(currentHash(), { fromLink: true });
   });
   // The schema and the first evaluation travel together (see evaluate).
-  evaluate(currentHash(), { fromLink: true, schemaReady: schemaReady.catch((err) => fatal(err.message)) });
+  await evaluate(currentHash(), { fromLink: true, schemaReady: schemaReady.catch((err) => fatal(err.message)) });
+  aidEngine.start(info.module);
 }
 
 $('build-version').textContent = PAGE_VERSION;

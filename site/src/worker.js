@@ -3,8 +3,9 @@
 // is prepended to this file by build.mjs, so `Go` is defined here.
 //
 // Protocol (postMessage):
-//   page → worker  {type:'init', gz: ArrayBuffer (gzip of the .wasm), version}
-//   worker → page  {type:'ready', version, initMs} | {type:'fatal', message}
+//   page → worker  {type:'init', gz: ArrayBuffer (gzip of the .wasm)}
+//                | {type:'init', module: WebAssembly.Module (compiled by another worker)}
+//   worker → page  {type:'ready', version, initMs, module} | {type:'fatal', message}
 //   page → worker  {type:'call', id, method, args}
 //   worker → page  {type:'reply', id, response, ms}
 /* global Go */
@@ -48,14 +49,23 @@ async function start(msg) {
   const ready = new Promise((resolve) => {
     self.stagewrightReady = resolve;
   });
-  const { instance } = await instantiate(msg.gz, go.importObject);
+  let module;
+  let instance;
+  if (msg.module) {
+    module = msg.module;
+    instance = await WebAssembly.instantiate(module, go.importObject);
+  } else {
+    ({ module, instance } = await instantiate(msg.gz, go.importObject));
+  }
   go.run(instance).then(() => {
     self.postMessage({ type: 'fatal', message: 'the Go runtime stopped' });
   });
   await ready;
   api = self.stagewright;
   if (!api || typeof api.evaluate !== 'function') throw new Error('the WebAssembly module did not register globalThis.stagewright');
-  self.postMessage({ type: 'ready', version: String(api.version), initMs: performance.now() - t0 });
+  // The compiled module goes back with the answer, so that the page can
+  // start a second engine without compiling again.
+  self.postMessage({ type: 'ready', version: String(api.version), initMs: performance.now() - t0, module });
 }
 
 self.onmessage = (e) => {
