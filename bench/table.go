@@ -325,6 +325,9 @@ func main() {
 		rows = append(rows, row{"js/wasm over native", fmt.Sprintf("%.1f×", budgetWasmRatio), "not measured", "—"})
 	}
 
+	// Monte Carlo natively: 10,000 samples of the default design.
+	rows = append(rows, monteCarloRow(root))
+
 	// The browser benchmark's figures.
 	rows = append(rows, browserRows(filepath.Join(root, browserBenchJSON))...)
 
@@ -351,6 +354,30 @@ func main() {
 	if failed {
 		os.Exit(1)
 	}
+}
+
+// monteCarloRow runs BenchmarkMonteCarlo/10000 in core/variation natively
+// (five runs; the median's ns/op is the time of one 10,000-sample run).
+func monteCarloRow(root string) row {
+	const budgetMs = 300
+	r := row{"native Monte Carlo, 10,000 samples (op + midband + f3db each)", fmt.Sprintf("%d ms", budgetMs), "not measured", "—"}
+	cmd := exec.Command("go", "test", "-run", "XXX", "-bench", "BenchmarkMonteCarlo/10000$", "-benchtime", "5x", "-count", "3", "./core/variation")
+	cmd.Dir = root
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		r.measured = "not measured (" + strings.TrimSpace(tail(out, 1)) + ")"
+		return r
+	}
+	var ms []float64
+	for _, l := range parseBench(out) {
+		ms = append(ms, l.NsPerOp/1e6)
+	}
+	if len(ms) == 0 {
+		return r
+	}
+	r.measured = spread(ms, "%.0f ms")
+	r.within = verdict(median(ms) <= budgetMs)
+	return r
 }
 
 func minimum(xs []float64) float64 {
@@ -395,6 +422,8 @@ func browserRows(path string) []row {
 		{"slider_p95_ms", "slider move to redrawn plot, 95th percentile", "ms", 8},
 		{"open_to_plot_ms", "page open to first plot", "ms", 500},
 		{"single_file_bytes", "single-file page size", "bytes", 1.6e6},
+		{"mc_first_ms", "10,000 Monte Carlo samples in the page, first run", "ms", 1000},
+		{"mc_again_ms", "10,000 Monte Carlo samples in the page, second run", "ms", 1000},
 	}
 	values := map[string]float64{}
 	note := "not measured"
