@@ -103,13 +103,33 @@ func answer(jsonObj safejs.Value, method string, args []safejs.Value) (out any) 
 // a new buffer for the arrays.
 var seriesBytes []byte
 
-// attachSeries copies each series into a new Float64Array and sets it at
-// its place in obj.result. Non-finite values cross as NaN; the page turns
-// them into null, as the JSON path would.
+// attachSeries copies every series into one new Float64Array, in a single
+// copy, and sets a subarray view of it for each series at its place in
+// obj.result. Each call across the boundary costs microseconds under
+// js/wasm (and each JavaScript value held by Go a finalizer), so the
+// handover is one allocation and one copy, then two calls a series. The
+// page may move the shared buffer to another thread: it is not the
+// engine's memory. Non-finite values cross as NaN; the page turns them
+// into null, as the JSON path would.
 func attachSeries(obj safejs.Value, series []Series) error {
 	result, err := obj.Get("result")
 	if err != nil || result.Type() != safejs.TypeObject {
 		return err
+	}
+	total := 0
+	for _, s := range series {
+		total += len(s.Values)
+	}
+	if cap(seriesBytes) < 8*total {
+		seriesBytes = make([]byte, 8*total)
+	}
+	buf := seriesBytes[:8*total]
+	at := 0
+	for _, s := range series {
+		for _, v := range s.Values {
+			putUint64LE(buf[at:at+8], math.Float64bits(v))
+			at += 8
+		}
 	}
 	global := safejs.Global()
 	f64, err := global.Get("Float64Array")
@@ -120,37 +140,43 @@ func attachSeries(obj safejs.Value, series []Series) error {
 	if err != nil {
 		return err
 	}
+	all, err := f64.New(total)
+	if err != nil {
+		return err
+	}
+	ab, err := all.Get("buffer")
+	if err != nil {
+		return err
+	}
+	bytes, err := u8.New(ab)
+	if err != nil {
+		return err
+	}
+	if _, err := safejs.CopyBytesToJS(bytes, buf); err != nil {
+		return err
+	}
+	parents := map[string]safejs.Value{}
+	start := 0
 	for _, s := range series {
-		parent, err := result.Get(s.Path[0])
-		if err != nil || parent.Type() != safejs.TypeObject {
-			continue
+		end := start + len(s.Values)
+		parent, seen := parents[s.Path[0]]
+		if !seen {
+			p, err := result.Get(s.Path[0])
+			if err != nil {
+				return err
+			}
+			parent, parents[s.Path[0]] = p, p
 		}
-		n := len(s.Values)
-		if cap(seriesBytes) < 8*n {
-			seriesBytes = make([]byte, 8*n)
+		if parent.Type() == safejs.TypeObject {
+			view, err := all.Call("subarray", start, end)
+			if err != nil {
+				return err
+			}
+			if err := parent.Set(s.Path[1], view); err != nil {
+				return err
+			}
 		}
-		buf := seriesBytes[:8*n]
-		for i, v := range s.Values {
-			putUint64LE(buf[8*i:8*i+8], math.Float64bits(v))
-		}
-		arr, err := f64.New(n)
-		if err != nil {
-			return err
-		}
-		ab, err := arr.Get("buffer")
-		if err != nil {
-			return err
-		}
-		view, err := u8.New(ab)
-		if err != nil {
-			return err
-		}
-		if _, err := safejs.CopyBytesToJS(view, buf); err != nil {
-			return err
-		}
-		if err := parent.Set(s.Path[1], arr); err != nil {
-			return err
-		}
+		start = end
 	}
 	return nil
 }

@@ -11,6 +11,7 @@
 /* global Go */
 
 let api = null;
+let memory = null; // the Go instance's WebAssembly.Memory (its buffer changes when it grows)
 
 function gunzipped(buf) {
   return new Blob([buf]).stream().pipeThrough(new DecompressionStream('gzip'));
@@ -28,7 +29,11 @@ async function instantiate(gz, imports) {
   return WebAssembly.instantiate(bytes, imports);
 }
 
-/** The ArrayBuffers of the typed arrays in response.result.ac and .noise, to move instead of copy. */
+/**
+ * The ArrayBuffers behind the typed arrays in response.result.ac and .noise
+ * (the bridge puts all series in one buffer), to move instead of copy; never
+ * the engine's own memory.
+ */
 function seriesBuffers(response) {
   const out = [];
   const r = response && response.result;
@@ -36,8 +41,8 @@ function seriesBuffers(response) {
   for (const part of [r.ac, r.noise]) {
     if (!part) continue;
     for (const v of Object.values(part)) {
-      // only an array that owns its whole buffer (never a view into the engine's memory)
-      if (ArrayBuffer.isView(v) && v.byteOffset === 0 && v.byteLength === v.buffer.byteLength && !out.includes(v.buffer)) out.push(v.buffer);
+      if (!ArrayBuffer.isView(v) || (memory && v.buffer === memory.buffer) || out.includes(v.buffer)) continue;
+      out.push(v.buffer);
     }
   }
   return out;
@@ -57,6 +62,7 @@ async function start(msg) {
   } else {
     ({ module, instance } = await instantiate(msg.gz, go.importObject));
   }
+  memory = instance.exports.mem instanceof WebAssembly.Memory ? instance.exports.mem : null;
   go.run(instance).then(() => {
     self.postMessage({ type: 'fatal', message: 'the Go runtime stopped' });
   });
