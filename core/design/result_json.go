@@ -4,7 +4,8 @@ import (
 	"math"
 	"sort"
 	"strconv"
-	"unicode/utf8"
+
+	"stagewright/core/jsonenc"
 )
 
 // The result is written as JSON by hand: encoding/json handles each of the
@@ -77,62 +78,12 @@ func (w *jsonWriter) floats(fs Floats) {
 	w.b = append(w.b, ']')
 }
 
-const hexDigits = "0123456789abcdef"
-
 // str writes a JSON string the way encoding/json does with HTML escaping
 // off: control characters, quote and backslash escaped, U+2028 and U+2029
 // escaped, invalid UTF-8 replaced by U+FFFD.
 func (w *jsonWriter) str(s string) {
 	w.sep()
-	b := append(w.b, '"')
-	start := 0
-	for i := 0; i < len(s); {
-		c := s[i]
-		if c < utf8.RuneSelf {
-			if c >= 0x20 && c != '"' && c != '\\' {
-				i++
-				continue
-			}
-			b = append(b, s[start:i]...)
-			switch c {
-			case '"', '\\':
-				b = append(b, '\\', c)
-			case '\n':
-				b = append(b, '\\', 'n')
-			case '\r':
-				b = append(b, '\\', 'r')
-			case '\t':
-				b = append(b, '\\', 't')
-			case '\b':
-				b = append(b, '\\', 'b')
-			case '\f':
-				b = append(b, '\\', 'f')
-			default:
-				b = append(b, '\\', 'u', '0', '0', hexDigits[c>>4], hexDigits[c&0xF])
-			}
-			i++
-			start = i
-			continue
-		}
-		r, size := utf8.DecodeRuneInString(s[i:])
-		if r == utf8.RuneError && size == 1 {
-			b = append(b, s[start:i]...)
-			b = append(b, `\ufffd`...)
-			i += size
-			start = i
-			continue
-		}
-		if r == '\u2028' || r == '\u2029' {
-			b = append(b, s[start:i]...)
-			b = append(b, '\\', 'u', '2', '0', '2', hexDigits[r&0xF])
-			i += size
-			start = i
-			continue
-		}
-		i += size
-	}
-	b = append(b, s[start:]...)
-	w.b = append(b, '"')
+	w.b = jsonenc.AppendStringKeepHTML(w.b, s)
 }
 
 func (w *jsonWriter) strings(ss []string) {

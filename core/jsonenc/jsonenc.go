@@ -379,13 +379,20 @@ const hexDigits = "0123456789abcdef"
 // quotes, backslashes and control characters escaped (\b, \f, \n, \r, \t
 // by name, others as \u00XX), <, > and & as \u003c, \u003e, \u0026,
 // U+2028 and U+2029 escaped, and invalid UTF-8 replaced by \ufffd.
-func AppendString(b []byte, s string) []byte {
+func AppendString(b []byte, s string) []byte { return appendString(b, s, true) }
+
+// AppendStringKeepHTML is AppendString without the escapes of <, > and &,
+// as encoding/json writes with SetEscapeHTML(false) (the engine's result,
+// read by JSON.parse only).
+func AppendStringKeepHTML(b []byte, s string) []byte { return appendString(b, s, false) }
+
+func appendString(b []byte, s string, html bool) []byte {
 	b = append(b, '"')
 	start := 0
 	for i := 0; i < len(s); {
 		c := s[i]
 		if c < utf8.RuneSelf {
-			if c >= 0x20 && c != '"' && c != '\\' && c != '<' && c != '>' && c != '&' {
+			if c >= 0x20 && c != '"' && c != '\\' && !(html && (c == '<' || c == '>' || c == '&')) {
 				i++
 				continue
 			}

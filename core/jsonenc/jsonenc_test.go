@@ -192,6 +192,16 @@ func TestStringsMatchEncodingJSON(t *testing.T) {
 	}
 	for _, s := range ss {
 		same(t, "string "+strconvQuote(s), s)
+		// AppendStringKeepHTML against encoding/json with HTML escaping off.
+		var want strings.Builder
+		enc := json.NewEncoder(&want)
+		enc.SetEscapeHTML(false)
+		if err := enc.Encode(s); err != nil {
+			t.Fatal(err)
+		}
+		if got := string(AppendStringKeepHTML(nil, s)) + "\n"; got != want.String() {
+			t.Errorf("AppendStringKeepHTML(%s) = %s, encoding/json without HTML escapes writes %s", strconvQuote(s), got, want.String())
+		}
 	}
 }
 
