@@ -69,17 +69,10 @@ func checkEigen(t *testing.T, what string, got, want []complex128, tol []float64
 	if len(got) != len(want) {
 		t.Fatalf("%s: %d eigenvalues %v, want %d: %v", what, len(got), got, len(want), want)
 	}
-	used := make([]bool, len(got))
+	best, dist := nearest(got, want)
 	for i, w := range want {
-		best, bestD := -1, math.Inf(1)
-		for j, g := range got {
-			if d := cmplx.Abs(g - w); !used[j] && d < bestD {
-				best, bestD = j, d
-			}
-		}
-		used[best] = true
-		if !(bestD <= tol[i]) {
-			t.Errorf("%s: want %.15g, nearest computed %.15g (|diff| %.3g > tol %.3g)", what, w, got[best], bestD, tol[i])
+		if !(dist[i] <= tol[i]) {
+			t.Errorf("%s: want %.15g, nearest computed %.15g (|diff| %.3g > tol %.3g)", what, w, got[best[i]], dist[i], tol[i])
 		}
 	}
 	for i := 0; i < len(got); i++ {
@@ -404,17 +397,13 @@ func TestPencilRootsAgainstGonumEigen(t *testing.T) {
 // orders a pair as conj(s), s).
 func checkEigenRoots(t *testing.T, what string, got, want []complex128, tol []float64) {
 	t.Helper()
-	used := make([]bool, len(got))
+	if len(got) < len(want) {
+		t.Fatalf("%s: %d roots %v, want %d: %v", what, len(got), got, len(want), want)
+	}
+	best, dist := nearest(got, want)
 	for i, w := range want {
-		best, bestD := -1, math.Inf(1)
-		for j, g := range got {
-			if d := cmplx.Abs(g - w); !used[j] && d < bestD {
-				best, bestD = j, d
-			}
-		}
-		used[best] = true
-		if !(bestD <= tol[i]) {
-			t.Errorf("%s: gonum-based root %.15g, own %.15g (|diff| %.3g > tol %.3g)", what, w, got[best], bestD, tol[i])
+		if !(dist[i] <= tol[i]) {
+			t.Errorf("%s: gonum-based root %.15g, own %.15g (|diff| %.3g > tol %.3g)", what, w, got[best[i]], dist[i], tol[i])
 		}
 	}
 }

@@ -15,22 +15,34 @@ import (
 // (so that reference rounding cannot reorder a pair) and requires the
 // distance to be at most tol·max(|want_i|, floor). It also checks the
 // documented order: |s| ascending, and a complex pair as conj(s), s.
+// nearest pairs each wanted value with the nearest computed one not taken
+// by an earlier wanted value: the index in got and the distance. got must be
+// at least as long as want.
+func nearest(got, want []complex128) (index []int, dist []float64) {
+	used := make([]bool, len(got))
+	index, dist = make([]int, len(want)), make([]float64, len(want))
+	for i, w := range want {
+		best, bestD := -1, math.Inf(1)
+		for j, g := range got {
+			if d := cmplx.Abs(g - w); !used[j] && d < bestD {
+				best, bestD = j, d
+			}
+		}
+		used[best] = true
+		index[i], dist[i] = best, bestD
+	}
+	return index, dist
+}
+
 func checkRoots(t *testing.T, got, want []complex128, tol, floor float64) {
 	t.Helper()
 	if len(got) != len(want) {
 		t.Fatalf("got %d roots %v, want %d: %v", len(got), got, len(want), want)
 	}
-	used := make([]bool, len(got))
-	for _, w := range want {
-		best, bestD := -1, math.Inf(1)
-		for i, g := range got {
-			if d := cmplx.Abs(g - w); !used[i] && d < bestD {
-				best, bestD = i, d
-			}
-		}
-		used[best] = true
-		if bestD > tol*math.Max(cmplx.Abs(w), floor) {
-			t.Errorf("want root %.10g, nearest computed %.10g (|diff| %.3g)", w, got[best], bestD)
+	best, dist := nearest(got, want)
+	for i, w := range want {
+		if dist[i] > tol*math.Max(cmplx.Abs(w), floor) {
+			t.Errorf("want root %.10g, nearest computed %.10g (|diff| %.3g)", w, got[best[i]], dist[i])
 		}
 	}
 	for i := 0; i+1 < len(got); i++ {
