@@ -37,8 +37,10 @@ func BenchmarkEvaluate(b *testing.B) {
 // BenchmarkEvaluatePoints shows how the cost grows with the sweep: the
 // allocations stay the same whatever the number of points.
 func BenchmarkEvaluatePoints(b *testing.B) {
-	for _, ppd := range []int{10, 40, 160} {
-		d := mustDecode(b, fmt.Sprintf("stage=cs&load=r&fmin=10&fmax=100G&ppd=%d", ppd))
+	// 101, 401, 1,601 and 2,801 points: the last is the longest sweep the
+	// keys allow in practice (ppd at most 200, from 1 mHz to 100 GHz).
+	for _, sweep := range []string{"fmin=10&ppd=10", "fmin=10&ppd=40", "fmin=10&ppd=160", "fmin=1m&ppd=200"} {
+		d := mustDecode(b, "stage=cs&load=r&fmax=100G&"+sweep)
 		b.Run(fmt.Sprintf("points=%d", d.SweepPoints()), func(b *testing.B) {
 			var e Evaluator
 			e.Evaluate(d)
