@@ -92,7 +92,7 @@ const decadeGrid = { stroke: AID_COLOURS.grid, width: 1, filter: (u, splits) => 
 
 /**
  * A small x–y chart that keeps its width in step with its box. spec:
- * {xLabel, yLabel, xUnit, yUnit, xLog, yLog, height, bars, series: [{label, stroke, dash, width}]}.
+ * {xLabel, yLabel, xUnit, yUnit, xLog, yLog, xDigits, xSpace (least pixels between x ticks, for long labels), height, bars, series: [{label, stroke, dash, width}]}.
  * overlay(u, ctx) draws on top (markers, shading); under(u, ctx) below the lines.
  */
 export class Chart {
@@ -124,7 +124,7 @@ export class Chart {
       cursor: { drag: { x: false, y: false }, points: { size: 6 } },
       scales: { x: { time: false, distr: s.xLog ? 3 : 1 }, y: { distr: s.yLog ? 3 : 1, ...(s.bars ? { range: (u, lo, hi) => [0, Math.max(1, hi * 1.08)] } : {}) } },
       axes: [
-        axis({ label: s.xLabel, size: 34, values: s.xLog ? decadeValues(s.xUnit || '') : siValues(s.xUnit || '', s.xDigits), ...(s.xLog ? { grid: decadeGrid } : {}) }),
+        axis({ label: s.xLabel, size: 34, space: s.xSpace || 50, values: s.xLog ? decadeValues(s.xUnit || '') : siValues(s.xUnit || '', s.xDigits), ...(s.xLog ? { grid: decadeGrid } : {}) }),
         axis({ label: s.yLabel, size: 58, values: s.yLog ? decadeValues(s.yUnit || '') : siValues(s.yUnit || ''), ...(s.yLog ? { grid: decadeGrid } : {}) }),
       ],
       series: [

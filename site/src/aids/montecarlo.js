@@ -26,7 +26,7 @@ export function monteCarloPanel(ctx) {
   const charts = QUANTITIES.map((q) => {
     const box = h('div', { class: 'plot aid-small', id: `mc-hist-${q.key}`, role: 'img', 'aria-label': `histogram of ${q.label}` });
     hists.appendChild(h('figure', { class: 'aid-figure' }, h('figcaption', { text: `${q.label} (${q.unit})` }), h('p', { class: 'aid-note aid-held-note', text: 'held by the bias: no spread beyond rounding' }), box));
-    return { q, c: new Chart(box, { xLabel: q.unit, yLabel: 'samples', xUnit: q.unit === 'V/V' ? '' : q.unit, xDigits: 5, height: 170, bars: true, series: [{ label: 'count' }] }) };
+    return { q, c: new Chart(box, { xLabel: q.unit, yLabel: 'samples', xUnit: q.unit === 'V/V' ? '' : q.unit, xDigits: 5, xSpace: 96, height: 170, bars: true, series: [{ label: 'count' }] }) };
   });
   const msg = note();
   p.body.append(
@@ -42,7 +42,7 @@ export function monteCarloPanel(ctx) {
     if (r.covered && r.covered.length) {
       yieldLine.append(h('strong', { text: `Yield ${y == null ? '—' : (100 * y).toFixed(1) + ' %'}` }), ` (${r.passed} of ${r.samples} samples meet ${r.covered.join(', ')})`);
       if (r.not_covered && r.not_covered.length) yieldLine.append(`; not counted per sample: ${r.not_covered.join(', ')}`);
-    } else yieldLine.append('No yield: set targets under “Size to a spec”.');
+    } else yieldLine.append('No yield: set targets under “Size to a spec”');
     yieldLine.append(`. ${r.samples} samples${r.canceled ? ' (cancelled)' : ''}, ${r.failed} without an operating point, in ${(ms / 1000).toFixed(2)} s.`);
     clear(stats);
     stats.append(table('', ['', 'mean', 'σ', 'σ/|mean|', 'min', 'max'], QUANTITIES.map((q) => {
