@@ -148,11 +148,19 @@ export class Chart {
       this.u = null;
       return;
     }
-    if (!this.u) this.u = new uPlot({ ...this.options(), ...this.size() }, data, this.box);
-    else {
-      this.u.setData(data);
-      this.u.redraw();
+    // uPlot keeps the x range of its first data across setData here (seen:
+    // a second Monte Carlo run of another design drew its histograms outside
+    // the old range, so the charts were empty); a chart whose x extent
+    // changes is made again, the rest only take the new data.
+    const xs = data[0];
+    const extent = xs.length ? `${xs[0]}|${xs[xs.length - 1]}` : '';
+    if (this.u && extent !== this.extent) {
+      this.u.destroy();
+      this.u = null;
     }
+    this.extent = extent;
+    if (!this.u) this.u = new uPlot({ ...this.options(), ...this.size() }, data, this.box);
+    else this.u.setData(data);
   }
 }
 
