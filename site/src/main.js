@@ -211,14 +211,15 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   document.body.classList.toggle('no-result', !r.ok);
   const shown = r.ok && state.plots.ac.update(r);
   if (r.ok) state.plots.noise.update(r);
-  const proc = fragmentMap(state.canonical).get('proc');
+  const canonicalValues = fragmentMap(state.canonical); // parsed once: its process here, the controls' values below
+  const proc = canonicalValues.get('proc');
   if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
   // A result for an older request (a newer one is on its way) must not put
   // its values back into the controls: an edit made meanwhile would be lost
   // when the next edit is built from them. Only the newest request's
   // canonical form replaces what the user has set.
   const latest = fragment === state.requested;
-  if (latest) state.values = fragmentMap(state.canonical);
+  if (latest) state.values = canonicalValues;
   const problems = [...pageProblems, ...(r.problems || [])];
   const bad = new Set(problems.map((p) => p.key));
   const v = (k) => state.values.get(k) ?? schemaDefault(k);
