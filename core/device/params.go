@@ -62,6 +62,7 @@ type Params struct {
 	PB      float64 // V, junction built-in potential
 	LDiff   float64 // m, source/drain diffusion length: area W·LDiff, perimeter W + 2·LDiff
 	KF      float64 // V²·F, flicker coefficient: gate-referred S_vg(f) = KF/(Cox·W·L·f)
+	DIBL    float64 // m, drain-induced barrier lowering: the threshold falls by σ·|VDS| with σ = DIBL/L (V/V)
 }
 
 // RangeError reports a value outside its accepted range: a process
@@ -119,6 +120,7 @@ var paramRanges = []paramRange{
 	{"PB", func(p Params) float64 { return p.PB }, 0.1, 2, "V", false},
 	{"LDiff", func(p Params) float64 { return p.LDiff }, 0, 1e-4, "m", false},
 	{"KF", func(p Params) float64 { return p.KF }, 0, 1e-20, "V²·F", false},
+	{"DIBL", func(p Params) float64 { return p.DIBL }, 0, 1e-6, "m", false},
 }
 
 // Validate checks every field against its accepted range and returns a
