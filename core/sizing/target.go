@@ -14,6 +14,7 @@ type goal struct {
 	linear          bool // margins in V: compare differences, not ratios
 	target          float64
 	value           func(d *design.Design, r *design.Result) float64
+	slack           float64 // relative miss still counted as met (metSlack, plus the leakage for a current or power)
 }
 
 // goals lists the targets of d that are set (non-zero), in key-table order.
@@ -41,6 +42,13 @@ func goals(d *design.Design) []goal {
 	}
 	var out []goal
 	for _, g := range all {
+		g.slack = metSlack
+		switch g.key {
+		case "t.idd":
+			g.slack += leakSlack / g.target
+		case "t.power":
+			g.slack += leakSlack * d.VDD / g.target
+		}
 		if g.target > 0 {
 			out = append(out, g)
 		}
@@ -56,13 +64,25 @@ func gainOf(_ *design.Design, r *design.Result) float64 {
 }
 
 // f3dbOf is the bandwidth; a response that does not fall by 3 dB within the
-// sweep counts as reaching its top, fmax.
+// sweep counts as reaching its top, fmax. One already 3 dB down at the first
+// point of the sweep has its slowest pole below fmin: it counts as that
+// pole's frequency (|p|/2π, no lower than the −3 dB frequency of a response
+// whose slowest pole dominates), and fmin when there is no pole to read.
 func f3dbOf(d *design.Design, r *design.Result) float64 {
 	if r.AC == nil {
 		return math.NaN()
 	}
 	if f := float64(r.AC.F3dB); r.AC.F3dB.Finite() {
 		return f
+	}
+	if len(r.AC.MagDB) > 0 && r.AC.MagDB[0] <= float64(r.AC.DCGainDB)-3.0103 {
+		if r.Dominant != nil && *r.Dominant >= 0 && *r.Dominant < len(r.Poles) {
+			p := r.Poles[*r.Dominant]
+			if f := math.Hypot(float64(p.Re), float64(p.Im)); f > 0 && f < d.FMin {
+				return f
+			}
+		}
+		return d.FMin
 	}
 	return d.FMax
 }
