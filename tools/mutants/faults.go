@@ -140,7 +140,7 @@ var faults = []fault{
 		From: `return value/g.target - 1`,
 		To:   `return value/g.target - 0.9`,
 		Pkgs: []string{`./core/sizing`}},
-	{Name: `charts: gm·ro written as gm/gds²`, File: `core/charts/charts.go`,
+	{Name: `charts: intrinsic gain written as gm·ro²`, File: `core/charts/charts.go`,
 		From: `finite(r.GM*r.RO)`,
 		To:   `finite(r.GM*r.RO*r.RO)`,
 		Pkgs: []string{`./core/charts`}},
