@@ -89,7 +89,7 @@ func TestCommonSourceEstimatesClosedForm(t *testing.T) {
 //
 // solved here by bisection. The engine interpolates the sweep's dB values
 // linearly in log f between points 10^(1/40) apart; near a pole that errs by
-// h²/8·|y”| ≈ 0.0018 dB (h = ln 10/40, |y”| ≤ 4.34 dB per neper²), or
+// h²/8·|d²y/du²| ≈ 0.0018 dB (u = ln f, h = ln 10/40, |d²y/du²| ≤ 4.34 dB), or
 // 4e-4 in frequency at the 4.3 dB-per-neper slope there: 1e-3 allows it.
 func TestCommonSourceF3dBFromTransfer(t *testing.T) {
 	for _, frag := range csCases {
