@@ -1,7 +1,7 @@
 # Stagewright build. `make run` serves the page, `make test` runs every test.
 GO ?= go
 
-.PHONY: test test-go vet fmt-check run site bench fuzz random-full
+.PHONY: test test-go vet fmt-check run site bench fuzz random-full mutants
 
 test: fmt-check vet test-go test-web
 
@@ -9,10 +9,10 @@ test-go:
 	$(GO) test ./core/... ./bench
 
 vet:
-	$(GO) vet ./core/... ./bench
+	$(GO) vet ./core/... ./bench ./tools/...
 
 fmt-check:
-	@out=$$(gofmt -l core wasm bench 2>/dev/null); if [ -n "$$out" ]; then echo "gofmt would change: $$out"; exit 1; fi
+	@out=$$(gofmt -l core wasm bench tools 2>/dev/null); if [ -n "$$out" ]; then echo "gofmt would change: $$out"; exit 1; fi
 
 # Benchmarks: native and js/wasm engine, and the browser figures when the
 # browser benchmark has written site/dist/bench.json; one table with budgets.
@@ -21,13 +21,18 @@ bench: bench-web
 
 # Each fuzz target for FUZZTIME (go test -fuzz takes one target at a time).
 FUZZTIME ?= 30s
-FUZZ_TARGETS = ./core/units:FuzzParse ./core/units:FuzzExact ./core/design:FuzzDecode ./core/design:FuzzEvaluate
+FUZZ_TARGETS = ./core/units:FuzzParse ./core/units:FuzzExact ./core/device:FuzzCurrent ./core/design:FuzzDecode ./core/design:FuzzEvaluate
 
 fuzz:
 	@set -e; for t in $(FUZZ_TARGETS); do \
 		echo "fuzz $${t#*:} in $${t%%:*} for $(FUZZTIME)"; \
 		$(GO) test -run '^$$' -fuzz "^$${t#*:}$$" -fuzztime $(FUZZTIME) $${t%%:*}; \
 	done
+
+# Deliberate faults, one at a time in a copy of the module (tools/mutants):
+# fails when any fault survives the tests of its packages. About a minute.
+mutants:
+	$(GO) run ./tools/mutants
 
 # The full random-design run (100,000 designs); make test runs 10,000.
 random-full:

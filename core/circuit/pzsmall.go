@@ -103,15 +103,31 @@ func smallRoots(p poly, maxS float64) ([]complex128, bool) {
 	case 3:
 		roots = cubic(p[3], p[2], p[1], p[0])
 	}
+	polished := true
 	for i, r := range roots {
 		r, ok := polish(p, deg, r)
 		if !ok {
-			return nil, false
-		}
-		if imag(r) != 0 && math.Abs(imag(r)) <= 1e-12*cmplx.Abs(r) {
-			r = complex(real(r), 0)
+			polished = false
+			break
 		}
 		roots[i] = r
+	}
+	if !polished {
+		// Roots many decades apart (a 1 nΩ degeneration next to a 1 kΩ
+		// source) defeat the closed forms. They are then near the ratios of
+		// consecutive coefficients, −p[k−1]/p[k] (the Newton-polygon
+		// estimate of well-separated roots), from which Newton's method
+		// converges; they are kept only if all polish, are distinct and
+		// their product is (−1)^deg·p[0]/p[deg].
+		var ok bool
+		if roots, ok = separatedRoots(p, deg); !ok {
+			return nil, false
+		}
+	}
+	for i, r := range roots {
+		if imag(r) != 0 && math.Abs(imag(r)) <= 1e-12*cmplx.Abs(r) {
+			roots[i] = complex(real(r), 0)
+		}
 	}
 	kept := roots[:0]
 	for _, r := range roots {
@@ -130,6 +146,42 @@ func smallRoots(p poly, maxS float64) ([]complex128, bool) {
 		return imag(kept[i]) < imag(kept[j])
 	})
 	return kept, true
+}
+
+// separatedRoots finds the roots of p (degree deg) from the coefficient
+// ratios −p[k−1]/p[k], each polished by Newton's method; ok is false unless
+// every estimate polishes to a root, the roots are distinct (1e-6
+// relative) and their product matches (−1)^deg·p[0]/p[deg] to 1e-9.
+func separatedRoots(p poly, deg int) ([]complex128, bool) {
+	if deg < 1 || p[0] == 0 {
+		return nil, false
+	}
+	roots := make([]complex128, deg)
+	prod := complex(1, 0)
+	for k := 1; k <= deg; k++ {
+		if p[k] == 0 {
+			return nil, false
+		}
+		r, ok := polish(p, deg, complex(-p[k-1]/p[k], 0))
+		if !ok {
+			return nil, false
+		}
+		for _, q := range roots[:k-1] {
+			if cmplx.Abs(r-q) <= 1e-6*cmplx.Abs(r) {
+				return nil, false
+			}
+		}
+		roots[k-1] = r
+		prod *= r
+	}
+	want := p[0] / p[deg]
+	if deg%2 == 1 {
+		want = -want
+	}
+	if cmplx.Abs(prod-complex(want, 0)) > 1e-9*math.Abs(want) {
+		return nil, false
+	}
+	return roots, true
 }
 
 // quadratic solves a·s² + b·s + c = 0 without cancellation.

@@ -84,6 +84,7 @@ func FuzzEvaluate(f *testing.F) {
 		"p.kf=1e-20&p.tox=100n&pol=p&stage=sf&rs=1",
 		"l=0.18%C2%B5&w=0.22%C2%B5&id=1e-6",
 		"&&junk=1&w=-1&v=2",
+		"rs=1n", // poles ten decades apart: once reported a pole at 0 Hz
 	} {
 		f.Add(s)
 	}
@@ -125,6 +126,25 @@ func FuzzEvaluate(f *testing.F) {
 		if r.OK && r.Design != d.Encode() {
 			t.Fatalf("EvaluateFragment(%q): result design %q, Encode gives %q", fragment, r.Design, d.Encode())
 		}
+		if !r.OK {
+			return
+		}
+		// A stage is a passive network around transistors whose
+		// conductances are positive: it cannot oscillate, so every pole
+		// lies in the left half plane (Re < 0), and the resistance looking
+		// back into its output is positive (Kirchhoff's laws and
+		// passivity; common practice).
+		for _, p := range r.Poles {
+			if !(float64(p.Re) < 0) {
+				t.Fatalf("EvaluateFragment(%q): pole %g%+gj Hz not in the left half plane", fragment, float64(p.Re), float64(p.Im))
+			}
+		}
+		if !(float64(r.Midband.Rout) > 0) {
+			t.Fatalf("EvaluateFragment(%q): rout = %g Ω", fragment, float64(r.Midband.Rout))
+		}
+		// The operating point obeys KCL at every node (re-solved; the
+		// same check as the random designs).
+		checkKCLOf(t, d)
 	})
 }
 

@@ -21,6 +21,15 @@ import (
 // implementation independent of ours), and TestAgainstSciPy holds the
 // engine to those values. The SciPy output is committed, so the test needs
 // no Python.
+//
+// What this does and does not check: SciPy is fed the engine's own G and C,
+// so it checks the solve and the root finding on those matrices, not the
+// stamps that built them (a wrong stamp would be in both). The stamps have
+// their own check against a small-signal network written out by hand from
+// the textbook elements, with the bulk on a free node
+// (circuit.TestStampsMatchHandBuiltNetwork), and the stages against their
+// textbook expressions (stage.TestMidbandMatchesTextbook,
+// TestCommonSourceTwoPoleTextbook, TestCommonGatePolesAndEstimates).
 
 const (
 	referenceDir   = "../../testdata/smallsignal"
@@ -208,8 +217,11 @@ func toComplex(re, im []float64) []complex128 {
 // 2.5e-10. 1e-9 covers both and still fails on any real modelling or
 // stamping change (those move H by 1e-6 or more).
 //
-// Poles and zeros: the engine finds them as eigenvalues of (G + σC)⁻¹·C
-// (gonum), SciPy by the QZ algorithm on (G, −C). A simple eigenvalue moves
+// Poles and zeros: the engine finds them, for these networks of at most
+// three nodes, as the roots of the polynomial det(G + s·C) polished by
+// Newton's method (circuit.Poles; larger networks and a polynomial that
+// does not check out go to dense.PencilRoots, Hessenberg QR on the pencil),
+// SciPy by the QZ algorithm on (G, −C). A simple eigenvalue moves
 // by about eps·‖pencil‖ times its condition number; the roots here are real,
 // simple and spread over about three decades (|s| ≈ 5e7…2e11 rad/s), so a
 // few hundred eps relative is expected for the smallest (measured: at most

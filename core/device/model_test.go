@@ -417,8 +417,39 @@ func FuzzCurrent(f *testing.F) {
 		if e := d.Current(vd, vg, vs, vb); !finiteEval(e) {
 			t.Fatalf("(%g,%g,%g,%g) W=%g L=%g T=%g: %+v", vd, vg, vs, vb, w, l, temp, e)
 		}
-		if r := d.Report(vd, vg, vs, vb); !finiteReport(r) {
+		r := d.Report(vd, vg, vs, vb)
+		if !finiteReport(r) {
 			t.Fatalf("(%g,%g,%g,%g) W=%g L=%g T=%g: %+v", vd, vg, vs, vb, w, l, temp, r)
+		}
+		// Exchanging source and drain reverses the current (the channel is
+		// symmetric; 1e-15 as TestSourceDrainSymmetry).
+		a, b := d.Current(vd, vg, vs, vb), d.Current(vs, vg, vd, vb)
+		if math.Abs(a.ID+b.ID) > 1e-15*math.Abs(a.ID) {
+			t.Fatalf("(%g,%g,%g,%g) W=%g L=%g T=%g: ID %.17g, source and drain exchanged %.17g", vd, vg, vs, vb, w, l, temp, a.ID, b.ID)
+		}
+		// The other polarity with the same numbers at negated voltages is
+		// the mirror image: current negated, conductances equal (exactly,
+		// as TestPMOSMirror).
+		other := NMOS
+		if pol == NMOS {
+			other = PMOS
+		}
+		if m, err := New(other, pr.Params(pol), pr.TNom, w, l, temp); err == nil {
+			e := m.Current(-vd, -vg, -vs, -vb)
+			if e.ID != -a.ID || e.GM != a.GM || e.GMB != a.GMB || e.GDS != a.GDS {
+				t.Fatalf("(%g,%g,%g,%g) W=%g L=%g T=%g: %+v, mirrored %+v", vd, vg, vs, vb, w, l, temp, a, e)
+			}
+		}
+		// gm/ID never exceeds its weak-inversion value 1/(n·UT) (Enz &
+		// Vittoz 2006), UT = kT/q from the CODATA constants; 1e-9 for
+		// rounding. Checked with every terminal within 5 V of the bulk,
+		// beyond any supply: at hundreds of volts the mobility term's
+		// dependence on n (a fitting form, not physics there) can lift
+		// gm/ID by parts in 10⁵.
+		const k, q = 1.380649e-23, 1.602176634e-19
+		within := math.Abs(vd-vb) <= 5 && math.Abs(vg-vb) <= 5 && math.Abs(vs-vb) <= 5
+		if ut := k * d.Temperature() / q; within && r.GmID > (1+1e-9)/(r.N*ut) {
+			t.Fatalf("(%g,%g,%g,%g) W=%g L=%g T=%g: gm/ID %.6g above 1/(n·UT) = %.6g", vd, vg, vs, vb, w, l, temp, r.GmID, 1/(r.N*ut))
 		}
 	})
 }
