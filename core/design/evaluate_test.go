@@ -170,7 +170,11 @@ func TestSourceFollowerTextbook(t *testing.T) {
 
 // Input-referred noise of a resistively loaded common-source stage at low
 // frequency, flicker noise off: v² = (S_id + 4kT/RD)/gm² (Razavi, ch. 7,
-// from memory: 4kT·(γ/gm + 1/(gm²·RD)) with S_id = 4kT·γ·gm). ro divides
+// from memory: 4kT·(γ/gm + 1/(gm²·RD)) with S_id = 4kT·γ·gm). S_id here is
+// the engine's own channel density, so this checks how the noise analysis
+// carries it to the input; the density itself is held to outside values by
+// the γ band below, TestChannelNoiseDensityLimits (device) and
+// TestCommonSourceNoiseShotLimit (2q·ID). ro divides
 // signal and noise alike and drops out. At 1 Hz the capacitances are
 // negligible: the check allows 1e-6 for that and rounding.
 // With flicker noise on, the corner frequency is where gm²·KF/(Cox·W·L·f)
