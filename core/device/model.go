@@ -74,6 +74,7 @@ type Device struct {
 	kp       float64 // A/V², µ·Cox
 	specPerN float64 // A, I_spec / n = 2·β·U_T²
 	lambda   float64 // 1/V
+	dibl     float64 // V/V, σ = DIBL/L: the threshold falls by σ·|VDS|
 	theta    float64 // 1/V, Theta + 1/(ECrit·L)
 
 	cGate   float64 // F, Cox·W·L
@@ -135,6 +136,7 @@ func New(pol Polarity, prm Params, tnom float64, w, l, temp float64) (Device, er
 	d.kp = mu * d.cox
 	d.specPerN = 2 * d.kp * (w / l) * d.ut * d.ut
 	d.lambda = prm.LambdaL / l
+	d.dibl = prm.DIBL / l
 	d.theta = prm.Theta
 	if prm.ECrit > 0 {
 		d.theta += 1 / (prm.ECrit * l)
@@ -282,7 +284,19 @@ func (d *Device) bias(vd, vg, vs, vb float64) biasPoint {
 	VS, kS := clampedVoltage(p * (vs - vb))
 	VD, kD := clampedVoltage(p * (vd - vb))
 
-	vp, dvp, n, dn := d.pinchOff(VG)
+	// Drain-induced barrier lowering, the first-order form VT = VT0 − σ·|VDS|:
+	// the gate voltage the pinch-off sees is raised by σ·|VDS|. Symmetric in
+	// source and drain; its kink at VDS = 0 leaves the current smooth, since
+	// ∂ID/∂VP vanishes there with qf = qr.
+	vds := VD - VS
+	sgn := 0.0
+	switch {
+	case vds > 0:
+		sgn = 1
+	case vds < 0:
+		sgn = -1
+	}
+	vp, dvp, n, dn := d.pinchOff(VG + d.dibl*math.Abs(vds))
 	ut := d.ut
 	qf, af := charge((vp - VS) / ut)
 	qr, ar := charge((vp - VD) / ut)
@@ -301,14 +315,6 @@ func (d *Device) bias(vd, vg, vs, vb float64) biasPoint {
 	mS := -tu * n * af / ut
 	mD := -tu * n * ar / ut
 
-	vds := VD - VS
-	sgn := 0.0
-	switch {
-	case vds > 0:
-		sgn = 1
-	case vds < 0:
-		sgn = -1
-	}
 	clm := 1 + d.lambda*math.Abs(vds)
 	cD := d.lambda * sgn
 
@@ -321,10 +327,12 @@ func (d *Device) bias(vd, vg, vs, vb float64) biasPoint {
 	gSn := (fS*k - f*cD/mob) - inorm*mS/mob
 	gDn := (fD*k + f*cD/mob) - inorm*mD/mob
 
+	// Barrier lowering moves VP with VDS: ∂VP/∂VD = −∂VP/∂VS = σ·sgn·dVP/dVG.
+	gdl := gPn * dvp * d.dibl * sgn
 	gmn := gPn * dvp * kG
 	gm := ispec * gmn
-	gs := ispec * gSn * kS
-	gds := ispec * gDn * kD
+	gs := ispec * (gSn - gdl) * kS
+	gds := ispec * (gDn + gdl) * kD
 	return biasPoint{
 		vg: VG, vs: VS, vd: VD,
 		vp: vp, n: n, qf: qf, qr: qr,

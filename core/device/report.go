@@ -101,7 +101,7 @@ func (d *Device) Report(vd, vg, vs, vb float64) Report {
 	r.VGS = p * (b.vg - b.vs)
 	r.VDS = p * (b.vd - b.vs)
 	r.VBS = -p * b.vs
-	vth := d.Threshold(b.vs)
+	vth := d.Threshold(b.vs) - d.dibl*math.Abs(b.vd-b.vs)
 	r.VTH = p * vth
 	r.Vov = b.vg - b.vs - vth
 
