@@ -61,7 +61,7 @@ const (
 
 // acc accumulates signed percent errors.
 type acc struct {
-	n             int
+	n              int
 	sum, sq, worst float64
 }
 
