@@ -1,6 +1,7 @@
 package extract
 
 import (
+	"encoding/json"
 	"errors"
 	"math"
 	"math/rand/v2"
@@ -9,6 +10,7 @@ import (
 
 	"stagewright/core/chardata"
 	"stagewright/core/device"
+	"stagewright/core/units"
 )
 
 // synth makes a table from a current function over the usual sweep:
@@ -247,4 +249,64 @@ func BenchmarkFit10k(b *testing.B) {
 	}
 	b.ReportMetric(float64(len(tab.Points)), "points")
 	b.ReportMetric(float64(res.Iterations), "iterations")
+}
+
+// The JSON object is valid JSON with the keys the command line and the page
+// read, finite numbers or null, and a fragment of the changed parameters.
+func TestFitJSON(t *testing.T) {
+	pr, _ := device.Builtin("d180")
+	tab := synth(ekv1995(1.35, 0.48, 300e-6), []float64{1e-6, 4e-6}, 1.8, 0, 1)
+	res, err := Fit(&tab, Options{Pol: device.NMOS, Base: pr.N, TNom: pr.TNom}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	raw := res.AppendJSON(nil)
+	var got struct {
+		OK     bool               `json:"ok"`
+		Pol    string             `json:"pol"`
+		Points int                `json:"points"`
+		Params map[string]float64 `json:"params"`
+		Fit    struct {
+			IDRMS   *float64 `json:"id_rms_pct"`
+			Regions map[string]struct {
+				Points int `json:"points"`
+			} `json:"regions"`
+		} `json:"fit"`
+		Fragment string `json:"fragment"`
+		Plots    struct {
+			IDVGS []struct {
+				X, Data, Model []*float64
+			} `json:"id_vgs"`
+			GmID []struct{ X []*float64 } `json:"gmid_id"`
+			GDS  []struct{ X []*float64 } `json:"gds_vds"`
+		} `json:"plots"`
+	}
+	if err := json.Unmarshal(raw, &got); err != nil {
+		t.Fatalf("%v in %.300s", err, raw)
+	}
+	if !got.OK || got.Pol != "n" || got.Points != len(tab.Points) || len(got.Params) != len(DefaultFree) {
+		t.Errorf("header %+v", got)
+	}
+	if got.Fit.IDRMS == nil || len(got.Fit.Regions) != 5 {
+		t.Errorf("fit section %+v", got.Fit)
+	}
+	if len(got.Plots.IDVGS) != 4 || len(got.Plots.GmID) != 2 || len(got.Plots.GDS) != 4 {
+		t.Errorf("plots: %d ID–VGS, %d gm/ID, %d gds curves; want 4, 2, 4", len(got.Plots.IDVGS), len(got.Plots.GmID), len(got.Plots.GDS))
+	}
+	if !strings.HasPrefix(got.Fragment, "n.") || !strings.Contains(got.Fragment, "n.thresh=") {
+		t.Errorf("fragment %q", got.Fragment)
+	}
+	for _, kv := range strings.Split(got.Fragment, "&") {
+		k, v, _ := strings.Cut(kv, "=")
+		info, _, ok := device.ParamByKey(strings.TrimPrefix(k, "n."))
+		if !ok {
+			t.Errorf("fragment key %q is not a parameter", k)
+			continue
+		}
+		x, err := units.Parse(v)
+		p := res.Params
+		if err != nil || x != *info.Field(&p) {
+			t.Errorf("fragment %s = %q, fitted %v", k, v, *info.Field(&p))
+		}
+	}
 }
