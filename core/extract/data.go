@@ -19,10 +19,10 @@ const (
 // point is one row of the table as the fit uses it.
 type point struct {
 	chardata.Point
-	geo        int     // index into prepared.geos
-	gm, gds    float64 // S, data derivatives (the table's, or by differences); NaN when unknown
-	inFit      bool    // above the current floor
-	sat        bool    // saturation at the starting parameters
+	geo     int     // index into prepared.geos
+	gm, gds float64 // S, data derivatives (the table's, or by differences); NaN when unknown
+	inFit   bool    // above the current floor
+	sat     bool    // saturation at the starting parameters
 }
 
 // geometry is one (W, L, temperature) group: one device.New per evaluation.

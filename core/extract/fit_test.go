@@ -1,8 +1,10 @@
 package extract
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"stagewright/core/chardata"
@@ -129,5 +131,164 @@ func TestRoundTrip(t *testing.T) {
 	// The residual must be the noise: 1 % rms, so between 0.8 and 1.3 %.
 	if r := res.Report.IDRMSPct; r < 0.8 || r > 1.3 {
 		t.Errorf("ID rms error %.3f %%, want the 1 %% noise (0.8 … 1.3)", r)
+	}
+}
+
+// ekv1995 is the drain current of the 1995 EKV interpolation (Enz,
+// Krummenacher and Vittoz, Analog Integrated Circuits and Signal Processing
+// 8, 1995): ID = IS·[ln²(1 + e^((VP−VS)/2U_T)) − ln²(1 + e^((VP−VD)/2U_T))],
+// VP = (VG − VT0)/n, all voltages referred to the bulk; written here so the
+// fit meets a model that is not its own.
+func ekv1995(n, vt0, isPerWL, w, tempC float64) func(vgs, vds, vbs, l float64) float64 {
+	ut := device.ThermalVoltage(tempC + 273.15)
+	f := func(x float64) float64 {
+		// ln(1 + e^x) without overflow
+		if x > 30 {
+			return x
+		}
+		return math.Log1p(math.Exp(x))
+	}
+	return func(vgs, vds, vbs, l float64) float64 {
+		vg, vs, vd := vgs-vbs, -vbs, vds-vbs
+		vp := (vg - vt0) / n
+		a, b := f((vp-vs)/(2*ut)), f((vp-vd)/(2*ut))
+		return isPerWL * (w / l) * (a*a - b*b)
+	}
+}
+
+// TestFitsEKV1995 fits data of the 1995 interpolation (n = 1.35,
+// VT0 = 0.5 V, IS = 2·n·µCox·U_T² per square for µCox = 250 µA/V², no body
+// effect beyond n, no mobility reduction, no CLM) with the constant-slope
+// variant and only the three parameters that form has.
+//
+// The two forms differ by more than "a few percent in moderate inversion"
+// (checks.md, from memory): the charge relation v = 2q + ln q keeps a ln q
+// that the interpolation's (v/2)² lacks, worth n·U_T·ln q ≈ 2·U_T of gate
+// voltage at q ≈ 8, and the interpolation reaches its weak-inversion
+// plateau only as √IC (gm·n·U_T/ID is 0.985 at the 1e-6 current floor,
+// IC ≈ 1e-3). So the tolerances are what those differences allow: ID rms
+// within 5 %; n within 3 % of the data's own slope factor at its lowest
+// fitted current, 1/(U_T·gm/ID), and within 5 % of the 1.35 the data were
+// made with; VT0 within 25 mV (≈ n·U_T·ln q at the strong end, 70 mV,
+// shared between VT0 and n over the range).
+func TestFitsEKV1995(t *testing.T) {
+	const n, vt0, kp = 1.35, 0.5, 250e-6
+	ut := device.ThermalVoltage(300.15)
+	g := defaultGrid()
+	g.vbs = []float64{0}
+	g.ls = []float64{1e-6, 4e-6}
+	tab := g.table(ekv1995(n, vt0, 2*n*kp*ut*ut, g.w, g.tempC), 0, 1)
+	base := d180n()
+	base.Theta, base.ECrit, base.LambdaL = 0, 0, 0 // the 1995 form has none of these
+	o := Options{Pol: device.NMOS, Base: base, TNom: 300.15, Free: []string{"thresh", "mobility", "slope"}}
+	res, err := Fit(tab, o, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The data's own slope factor at its lowest fitted current.
+	pr, _ := prepare(tab)
+	nData := 0.0
+	best := math.Inf(1)
+	for _, p := range pr.pts {
+		if p.inFit && p.gm > 0 && p.ID < best {
+			best, nData = p.ID, 1/(ut*p.gm/p.ID)
+		}
+	}
+	t.Logf("start n %.4f VT0 %.4f µ0 %.4g", res.Start.NFixed, res.Start.VT0, res.Start.U0)
+	t.Logf("n %.4f (data %.4f) VT0 %.4f µ0 %.4g, ID rms %.2f %% (weak %.2f, moderate %.2f, strong %.2f), %d iterations",
+		res.Params.NFixed, nData, res.Params.VT0, res.Params.U0, res.Report.IDRMSPct,
+		res.Report.Regions.Weak.IDRMSPct, res.Report.Regions.Moderate.IDRMSPct, res.Report.Regions.Strong.IDRMSPct, res.Iterations)
+	if res.Report.IDRMSPct > 5 {
+		t.Errorf("ID rms error %.2f %%, want ≤ 5 %%", res.Report.IDRMSPct)
+	}
+	if math.Abs(res.Params.NFixed-nData) > 0.03*nData {
+		t.Errorf("n = %.4f, want the data's %.4f ± 3 %%", res.Params.NFixed, nData)
+	}
+	if math.Abs(res.Params.NFixed-n) > 0.05*n {
+		t.Errorf("n = %.4f, want %.4f ± 5 %%", res.Params.NFixed, n)
+	}
+	if math.Abs(res.Params.VT0-vt0) > 0.025 {
+		t.Errorf("VT0 = %.4f V, want %.4f ± 25 mV", res.Params.VT0, vt0)
+	}
+}
+
+// TestRejectsBadData: tables from which the extraction cannot start must
+// give an *Error that names what is missing.
+func TestRejectsBadData(t *testing.T) {
+	truth := d180n()
+	strongOnly := defaultGrid()
+	strongOnly.vgs = span(0.75, 1.8, 0.05) // above threshold only: no plateau
+	single := defaultGrid()
+	single.vgs = []float64{0.9}
+	cutoff := defaultGrid()
+	cutoff.vgs = span(0, 0.1, 0.02) // ID ≪ 1 pA … a few pA at W/L ≤ 28
+	for _, c := range []struct {
+		name string
+		g    grid
+		want string
+	}{
+		{"no weak inversion", strongOnly, "weak inversion"},
+		{"single VGS", single, "single VGS"},
+		{"all in cut-off", cutoff, "cut-off"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			g := c.g
+			model := ourModel(t, truth, g.w, g.tempC)
+			if c.name == "all in cut-off" {
+				model = func(vgs, vds, vbs, l float64) float64 { return 1e-13 * (1 + vgs) }
+			}
+			_, err := Fit(g.table(model, 0, 1), Options{Pol: device.NMOS, Base: truth, TNom: 300.15}, nil)
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %v, want an *Error", err)
+			}
+			if !strings.Contains(e.Message, c.want) {
+				t.Errorf("message %q does not mention %q", e.Message, c.want)
+			}
+		})
+	}
+}
+
+// TestCancel: a progress function that says stop ends the fit after that
+// iteration with the best parameters so far.
+func TestCancel(t *testing.T) {
+	truth := d180n()
+	truth.VT0, truth.Theta = 0.52, 0.4
+	g := defaultGrid()
+	tab := g.table(ourModel(t, truth, g.w, g.tempC), 0.01, 3)
+	calls := 0
+	res, err := Fit(tab, Options{Pol: device.NMOS, Base: d180n(), TNom: 300.15}, func(done, total int) bool {
+		calls++
+		if total != lmMaxIter || done != calls {
+			t.Errorf("progress(%d, %d) at call %d", done, total, calls)
+		}
+		return false
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !res.Cancelled || res.Iterations != 1 || calls != 1 {
+		t.Errorf("cancelled %v after %d iterations and %d calls, want true, 1, 1", res.Cancelled, res.Iterations, calls)
+	}
+	if err := res.Params.Validate(); err != nil {
+		t.Errorf("best-so-far parameters invalid: %v", err)
+	}
+}
+
+// TestBoundsMatchValidate: every free parameter's interval lies inside
+// device.Params.Validate's accepted range (the device is the outside
+// authority on what a parameter may be).
+func TestBoundsMatchValidate(t *testing.T) {
+	for _, f := range freeParams {
+		for _, v := range []float64{f.lo, f.hi} {
+			p := d180n()
+			if f.key == "slope" {
+				p.NFixed = 1.3
+			}
+			*f.field(&p) = v
+			if err := p.Validate(); err != nil {
+				t.Errorf("%s = %g at its bound: %v", f.key, v, err)
+			}
+		}
 	}
 }
