@@ -102,6 +102,7 @@ type fitter struct {
 	idPts   []int // residual k < len(idPts): ln ID at this point
 	gdsPts  []int // then √w·relative gds error at these
 	wGDS    float64
+	needAll bool // the gds term differences the model over whole curves
 	scratch device.Params
 }
 
@@ -127,6 +128,7 @@ func (f *fitter) markSaturation(p device.Params) {
 		pt.sat = rep.Margin > 0
 		if f.wGDS > 0 && pt.sat && pt.gds > 0 && !math.IsInf(pt.gds, 0) {
 			f.gdsPts = append(f.gdsPts, i)
+			f.needAll = f.needAll || pt.gdsDiff
 		}
 	}
 }
@@ -134,7 +136,7 @@ func (f *fitter) markSaturation(p device.Params) {
 func (f *fitter) residual(x, r []float64) bool {
 	p := f.scratch // the fixed fields; x is already inside the bounds
 	fromX(f.free, x, &p)
-	if err := f.ev.eval(p, false); err != nil {
+	if err := f.ev.eval(p, f.needAll); err != nil {
 		return false
 	}
 	for k, i := range f.idPts {
@@ -147,7 +149,11 @@ func (f *fitter) residual(x, r []float64) bool {
 	off := len(f.idPts)
 	for k, i := range f.gdsPts {
 		d := f.pr.pts[i].gds
-		r[off+k] = f.wGDS * (f.ev.gd[i] - d) / d
+		m := f.ev.modelGDS(i)
+		if math.IsNaN(m) {
+			m = f.ev.gd[i]
+		}
+		r[off+k] = f.wGDS * (m - d) / d
 	}
 	return true
 }
@@ -155,7 +161,7 @@ func (f *fitter) residual(x, r []float64) bool {
 // scatter returns the rms ln ID residual and the rms relative gds error
 // (over the gds points) at p.
 func (f *fitter) scatter(p device.Params) (sID, sGDS float64) {
-	if f.ev.eval(p, false) != nil {
+	if f.ev.eval(p, true) != nil {
 		return 0, 0
 	}
 	for _, i := range f.idPts {
@@ -166,7 +172,11 @@ func (f *fitter) scatter(p device.Params) (sID, sGDS float64) {
 	}
 	for _, i := range f.gdsPts {
 		d := f.pr.pts[i].gds
-		e := (f.ev.gd[i] - d) / d
+		m := f.ev.modelGDS(i)
+		if math.IsNaN(m) {
+			m = f.ev.gd[i]
+		}
+		e := (m - d) / d
 		sGDS += e * e
 	}
 	return math.Sqrt(sID / float64(len(f.idPts))), math.Sqrt(sGDS / float64(max(len(f.gdsPts), 1)))

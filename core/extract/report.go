@@ -94,9 +94,9 @@ func (f *fitter) report(p device.Params) (Report, plots, error) {
 		} else {
 			tri.add(e)
 		}
-		if pt.gm > 0 && ev.id[i] > 0 {
+		if mg := ev.modelGM(i); pt.gm > 0 && ev.id[i] > 0 && !math.IsNaN(mg) {
 			dm := pt.gm / pt.ID
-			eg := 100 * (ev.gm[i]/ev.id[i] - dm) / dm
+			eg := 100 * (mg/ev.id[i] - dm) / dm
 			if rep.Margin > 0 {
 				gmid.add(eg)
 				if rep.IF < 0.1 {
@@ -104,8 +104,8 @@ func (f *fitter) report(p device.Params) (Report, plots, error) {
 				}
 			}
 		}
-		if rep.Margin > 0 && pt.gds > 0 {
-			eg := 100 * (ev.gd[i] - pt.gds) / pt.gds
+		if mg := ev.modelGDS(i); rep.Margin > 0 && pt.gds > 0 && !math.IsNaN(mg) {
+			eg := 100 * (mg - pt.gds) / pt.gds
 			gds.add(eg)
 			l := key(f.pr.geos[pt.geo].l)
 			if gdsByL[l] == nil {
