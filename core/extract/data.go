@@ -223,7 +223,12 @@ type evaluator struct {
 	tnom       float64
 	shiftDIBL  bool // the device model ignores Params.DIBL: apply the contract's gate shift here
 	devs       []device.Device
+	geoParams  []device.Params // the parameters each geometry was built with
 	id, gm, gd []float64
+
+	// byLength, when set, gives each geometry its own length's parameters
+	// (per-length bins) in place of the one set eval is given.
+	byLength func(l float64) (device.Params, bool)
 }
 
 // modelUsesDIBL reports whether device.Device applies Params.DIBL itself
@@ -242,18 +247,26 @@ func modelUsesDIBL(base device.Params, tnom float64) bool {
 func newEvaluator(pr *prepared, tnom float64, shift bool) *evaluator {
 	n := len(pr.pts)
 	return &evaluator{pr: pr, tnom: tnom, shiftDIBL: shift, devs: make([]device.Device, len(pr.geos)),
-		id: make([]float64, n), gm: make([]float64, n), gd: make([]float64, n)}
+		geoParams: make([]device.Params, len(pr.geos)),
+		id:        make([]float64, n), gm: make([]float64, n), gd: make([]float64, n)}
 }
 
 // eval fills e.id, e.gm, e.gd (polarity-normalized) for the points with
 // inFit set, or every point when all is true.
 func (e *evaluator) eval(p device.Params, all bool) error {
 	for g, geo := range e.pr.geos {
-		d, err := device.New(device.NMOS, p, e.tnom, geo.w, geo.l, tempK(geo.tempC))
+		pg := p
+		if e.byLength != nil {
+			if b, ok := e.byLength(geo.l); ok {
+				pg = b
+			}
+		}
+		d, err := device.New(device.NMOS, pg, e.tnom, geo.w, geo.l, tempK(geo.tempC))
 		if err != nil {
 			return err
 		}
 		e.devs[g] = d
+		e.geoParams[g] = pg
 	}
 	for i := range e.pr.pts {
 		pt := &e.pr.pts[i]
@@ -264,7 +277,7 @@ func (e *evaluator) eval(p device.Params, all bool) error {
 		vg := pt.VGS
 		sigma := 0.0
 		if e.shiftDIBL {
-			sigma = p.DIBL / e.pr.geos[pt.geo].l
+			sigma = e.geoParams[pt.geo].DIBL / e.pr.geos[pt.geo].l
 			vg += sigma * math.Abs(pt.VDS)
 		}
 		r := d.Current(pt.VDS, vg, 0, pt.VBS)
@@ -303,11 +316,11 @@ func (e *evaluator) modelGDS(i int) float64 {
 
 // report returns the operating-point report at point i for the devices of
 // the last eval (regions, VDsat, IC).
-func (e *evaluator) report(p device.Params, i int) device.Report {
+func (e *evaluator) report(i int) device.Report {
 	pt := &e.pr.pts[i]
 	vg := pt.VGS
 	if e.shiftDIBL {
-		vg += p.DIBL / e.pr.geos[pt.geo].l * math.Abs(pt.VDS)
+		vg += e.geoParams[pt.geo].DIBL / e.pr.geos[pt.geo].l * math.Abs(pt.VDS)
 	}
 	return e.devs[pt.geo].Report(pt.VDS, vg, 0, pt.VBS)
 }

@@ -81,6 +81,18 @@ func Fit(t chardata.Table, o Options, progress func(done, total int) bool) (Resu
 		return Result{}, err
 	}
 	res.Report, res.plots = rep, pl
+	// Per-length bins when one set cannot follow the data.
+	if o.Bins && !cancelled && rep.IDRMSPct > BinThresholdPct && len(pr.lengths) > 1 {
+		bins, it, c := f.fitBins(p, progress)
+		if len(bins) > 0 {
+			rb, plb, err := f.report(p) // with the evaluator's per-length sets
+			if err == nil {
+				res.bins, res.Report, res.plots, res.Cancelled = bins, rb, plb, c
+				res.Iterations += it
+			}
+		}
+		f.ev.byLength = nil
+	}
 	return res, nil
 }
 
@@ -124,7 +136,7 @@ func (f *fitter) markSaturation(p device.Params) {
 	f.gdsPts = f.gdsPts[:0]
 	for _, i := range f.idPts {
 		pt := &f.pr.pts[i]
-		rep := f.ev.report(p, i)
+		rep := f.ev.report(i)
 		pt.sat = rep.Margin > 0
 		if f.wGDS > 0 && pt.sat && pt.gds > 0 && !math.IsInf(pt.gds, 0) {
 			f.gdsPts = append(f.gdsPts, i)
@@ -136,6 +148,12 @@ func (f *fitter) markSaturation(p device.Params) {
 func (f *fitter) residual(x, r []float64) bool {
 	p := f.scratch // the fixed fields; x is already inside the bounds
 	fromX(f.free, x, &p)
+	return f.residualAt(p, r)
+}
+
+// residualAt fills r at parameters p (and the evaluator's per-length sets,
+// when it has them).
+func (f *fitter) residualAt(p device.Params, r []float64) bool {
 	if err := f.ev.eval(p, f.needAll); err != nil {
 		return false
 	}

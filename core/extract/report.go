@@ -78,7 +78,7 @@ func (f *fitter) report(p device.Params) (Report, plots, error) {
 	gdsByL := map[float64]*acc{}
 	for _, i := range f.idPts {
 		pt := &f.pr.pts[i]
-		rep := ev.report(p, i)
+		rep := ev.report(i)
 		e := 100 * (ev.id[i] - pt.ID) / pt.ID
 		all.add(e)
 		switch {
