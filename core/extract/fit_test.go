@@ -343,3 +343,35 @@ func TestBins(t *testing.T) {
 		t.Errorf("fragment %q lacks the bins' thresh@L keys", frag)
 	}
 }
+
+// TestFindingsNameMisfit: data with three times the base's channel-length
+// modulation, fitted with lenmod and dibl held at the base, must produce a
+// finding that gds is low at each length (the model's gds then is about
+// a third of the data's, λ·ID against 3·λ·ID, so "low" by about 60 %,
+// well past the 10 % that makes a finding) and that gain figures are
+// optimistic.
+func TestFindingsNameMisfit(t *testing.T) {
+	truth := d180n()
+	truth.LambdaL = 3 * truth.LambdaL
+	g := defaultGrid()
+	tab := g.table(ourModel(t, truth, g.w, g.tempC), 0.002, 4)
+	o := Options{Pol: device.NMOS, Base: d180n(), TNom: 300.15, Free: []string{"thresh", "mobility", "body", "mobred"}}
+	res, err := Fit(tab, o, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range []string{"180 nm", "500 nm", "2.00 µm"} {
+		found := false
+		for _, f := range res.Report.Findings {
+			if strings.Contains(f, "gds in saturation at L = "+l) && strings.Contains(f, "low") && strings.Contains(f, "optimistic") {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("no finding of low gds at L = %s in %q", l, res.Report.Findings)
+		}
+	}
+	if res.Report.GDSRMSPct < 40 {
+		t.Errorf("gds rms error %.1f %%, want about 60 %%", res.Report.GDSRMSPct)
+	}
+}
