@@ -23,6 +23,11 @@ type point struct {
 	gm, gds float64 // S, data derivatives (the table's, or by differences); NaN when unknown
 	inFit   bool    // above the current floor
 	sat     bool    // saturation at the starting parameters
+	gmDiff  bool    // gm is a difference of the data (so the model's is taken alike)
+	gdsDiff bool    // gds likewise
+
+	vgsCurve, vgsPos int // its curve along VGS and its place there
+	vdsCurve, vdsPos int // its curve along VDS and its place there
 }
 
 // geometry is one (W, L, temperature) group: one device.New per evaluation.
@@ -138,30 +143,32 @@ func prepare(t chardata.Table) (*prepared, error) {
 	// Data derivatives: the table's columns, or three-point differences
 	// (exact for a parabola through the point and its two neighbours) along
 	// VGS of ln ID, and along VDS of ID.
-	for _, c := range pr.vgsCurves {
-		for k, i := range c.idx {
+	vgs := func(i int) float64 { return pr.pts[i].VGS }
+	vds := func(i int) float64 { return pr.pts[i].VDS }
+	lnID := func(i int) float64 { return logPos(pr.pts[i].ID) }
+	id := func(i int) float64 { return pr.pts[i].ID }
+	for c, cv := range pr.vgsCurves {
+		for k, i := range cv.idx {
 			p := &pr.pts[i]
+			p.vgsCurve, p.vgsPos = c, k
 			if t.HasGM && !math.IsNaN(p.Point.GM) {
 				p.gm = p.Point.GM
 				continue
 			}
-			d := derivative(c.idx, k, pr.pts, func(q *point) float64 { return q.VGS }, func(q *point) float64 {
-				if q.ID <= 0 {
-					return math.NaN()
-				}
-				return math.Log(q.ID)
-			})
-			p.gm = d * p.ID
+			p.gm = derivative(cv.idx, k, vgs, lnID) * p.ID
+			p.gmDiff = true
 		}
 	}
-	for _, c := range pr.vdsCurves {
-		for k, i := range c.idx {
+	for c, cv := range pr.vdsCurves {
+		for k, i := range cv.idx {
 			p := &pr.pts[i]
+			p.vdsCurve, p.vdsPos = c, k
 			if t.HasGDS && !math.IsNaN(p.Point.GDS) {
 				p.gds = p.Point.GDS
 				continue
 			}
-			p.gds = derivative(c.idx, k, pr.pts, func(q *point) float64 { return q.VDS }, func(q *point) float64 { return q.ID })
+			p.gds = derivative(cv.idx, k, vds, id)
+			p.gdsDiff = true
 		}
 	}
 	return pr, nil
@@ -170,12 +177,12 @@ func prepare(t chardata.Table) (*prepared, error) {
 // derivative is dy/dx at idx[k] by the three-point formula on an uneven
 // grid (two-point at the ends); NaN when the neighbours are missing,
 // coincide or have no finite y.
-func derivative(idx []int, k int, pts []point, x, y func(*point) float64) float64 {
+func derivative(idx []int, k int, x, y func(i int) float64) float64 {
 	n := len(idx)
 	if n < 2 {
 		return math.NaN()
 	}
-	at := func(j int) (float64, float64) { return x(&pts[idx[j]]), y(&pts[idx[j]]) }
+	at := func(j int) (float64, float64) { return x(idx[j]), y(idx[j]) }
 	var d float64
 	switch {
 	case k == 0:
@@ -199,6 +206,14 @@ func derivative(idx []int, k int, pts []point, x, y func(*point) float64) float6
 	return d
 }
 
+// logPos is ln v, NaN for v ≤ 0.
+func logPos(v float64) float64 {
+	if v <= 0 {
+		return math.NaN()
+	}
+	return math.Log(v)
+}
+
 // tempK converts the table's °C.
 func tempK(c float64) float64 { return c + 273.15 }
 
@@ -208,7 +223,12 @@ type evaluator struct {
 	tnom       float64
 	shiftDIBL  bool // the device model ignores Params.DIBL: apply the contract's gate shift here
 	devs       []device.Device
+	geoParams  []device.Params // the parameters each geometry was built with
 	id, gm, gd []float64
+
+	// byLength, when set, gives each geometry its own length's parameters
+	// (per-length bins) in place of the one set eval is given.
+	byLength func(l float64) (device.Params, bool)
 }
 
 // modelUsesDIBL reports whether device.Device applies Params.DIBL itself
@@ -227,18 +247,26 @@ func modelUsesDIBL(base device.Params, tnom float64) bool {
 func newEvaluator(pr *prepared, tnom float64, shift bool) *evaluator {
 	n := len(pr.pts)
 	return &evaluator{pr: pr, tnom: tnom, shiftDIBL: shift, devs: make([]device.Device, len(pr.geos)),
-		id: make([]float64, n), gm: make([]float64, n), gd: make([]float64, n)}
+		geoParams: make([]device.Params, len(pr.geos)),
+		id:        make([]float64, n), gm: make([]float64, n), gd: make([]float64, n)}
 }
 
 // eval fills e.id, e.gm, e.gd (polarity-normalized) for the points with
 // inFit set, or every point when all is true.
 func (e *evaluator) eval(p device.Params, all bool) error {
 	for g, geo := range e.pr.geos {
-		d, err := device.New(device.NMOS, p, e.tnom, geo.w, geo.l, tempK(geo.tempC))
+		pg := p
+		if e.byLength != nil {
+			if b, ok := e.byLength(geo.l); ok {
+				pg = b
+			}
+		}
+		d, err := device.New(device.NMOS, pg, e.tnom, geo.w, geo.l, tempK(geo.tempC))
 		if err != nil {
 			return err
 		}
 		e.devs[g] = d
+		e.geoParams[g] = pg
 	}
 	for i := range e.pr.pts {
 		pt := &e.pr.pts[i]
@@ -249,7 +277,7 @@ func (e *evaluator) eval(p device.Params, all bool) error {
 		vg := pt.VGS
 		sigma := 0.0
 		if e.shiftDIBL {
-			sigma = p.DIBL / e.pr.geos[pt.geo].l
+			sigma = e.geoParams[pt.geo].DIBL / e.pr.geos[pt.geo].l
 			vg += sigma * math.Abs(pt.VDS)
 		}
 		r := d.Current(pt.VDS, vg, 0, pt.VBS)
@@ -262,13 +290,37 @@ func (e *evaluator) eval(p device.Params, all bool) error {
 	return nil
 }
 
+// modelGM returns the model's gm at point i as the data's was taken: the
+// model's own when the table had gm, else the same difference of ln ID
+// along VGS over the same points, so that like is compared with like and
+// the grid's difference error cancels. Needs an eval with all set.
+func (e *evaluator) modelGM(i int) float64 {
+	pt := &e.pr.pts[i]
+	if !pt.gmDiff {
+		return e.gm[i]
+	}
+	d := derivative(e.pr.vgsCurves[pt.vgsCurve].idx, pt.vgsPos,
+		func(j int) float64 { return e.pr.pts[j].VGS }, func(j int) float64 { return logPos(e.id[j]) })
+	return d * e.id[i]
+}
+
+// modelGDS is modelGM's counterpart for gds along VDS.
+func (e *evaluator) modelGDS(i int) float64 {
+	pt := &e.pr.pts[i]
+	if !pt.gdsDiff {
+		return e.gd[i]
+	}
+	return derivative(e.pr.vdsCurves[pt.vdsCurve].idx, pt.vdsPos,
+		func(j int) float64 { return e.pr.pts[j].VDS }, func(j int) float64 { return e.id[j] })
+}
+
 // report returns the operating-point report at point i for the devices of
 // the last eval (regions, VDsat, IC).
-func (e *evaluator) report(p device.Params, i int) device.Report {
+func (e *evaluator) report(i int) device.Report {
 	pt := &e.pr.pts[i]
 	vg := pt.VGS
 	if e.shiftDIBL {
-		vg += p.DIBL / e.pr.geos[pt.geo].l * math.Abs(pt.VDS)
+		vg += e.geoParams[pt.geo].DIBL / e.pr.geos[pt.geo].l * math.Abs(pt.VDS)
 	}
 	return e.devs[pt.geo].Report(pt.VDS, vg, 0, pt.VBS)
 }

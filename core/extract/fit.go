@@ -81,6 +81,18 @@ func Fit(t chardata.Table, o Options, progress func(done, total int) bool) (Resu
 		return Result{}, err
 	}
 	res.Report, res.plots = rep, pl
+	// Per-length bins when one set cannot follow the data.
+	if o.Bins && !cancelled && rep.IDRMSPct > BinThresholdPct && len(pr.lengths) > 1 {
+		bins, it, c := f.fitBins(p, progress)
+		if len(bins) > 0 {
+			rb, plb, err := f.report(p) // with the evaluator's per-length sets
+			if err == nil {
+				res.bins, res.Report, res.plots, res.Cancelled = bins, rb, plb, c
+				res.Iterations += it
+			}
+		}
+		f.ev.byLength = nil
+	}
 	return res, nil
 }
 
@@ -102,6 +114,7 @@ type fitter struct {
 	idPts   []int // residual k < len(idPts): ln ID at this point
 	gdsPts  []int // then √w·relative gds error at these
 	wGDS    float64
+	needAll bool // the gds term differences the model over whole curves
 	scratch device.Params
 }
 
@@ -123,10 +136,11 @@ func (f *fitter) markSaturation(p device.Params) {
 	f.gdsPts = f.gdsPts[:0]
 	for _, i := range f.idPts {
 		pt := &f.pr.pts[i]
-		rep := f.ev.report(p, i)
+		rep := f.ev.report(i)
 		pt.sat = rep.Margin > 0
 		if f.wGDS > 0 && pt.sat && pt.gds > 0 && !math.IsInf(pt.gds, 0) {
 			f.gdsPts = append(f.gdsPts, i)
+			f.needAll = f.needAll || pt.gdsDiff
 		}
 	}
 }
@@ -134,7 +148,13 @@ func (f *fitter) markSaturation(p device.Params) {
 func (f *fitter) residual(x, r []float64) bool {
 	p := f.scratch // the fixed fields; x is already inside the bounds
 	fromX(f.free, x, &p)
-	if err := f.ev.eval(p, false); err != nil {
+	return f.residualAt(p, r)
+}
+
+// residualAt fills r at parameters p (and the evaluator's per-length sets,
+// when it has them).
+func (f *fitter) residualAt(p device.Params, r []float64) bool {
+	if err := f.ev.eval(p, f.needAll); err != nil {
 		return false
 	}
 	for k, i := range f.idPts {
@@ -147,7 +167,11 @@ func (f *fitter) residual(x, r []float64) bool {
 	off := len(f.idPts)
 	for k, i := range f.gdsPts {
 		d := f.pr.pts[i].gds
-		r[off+k] = f.wGDS * (f.ev.gd[i] - d) / d
+		m := f.ev.modelGDS(i)
+		if math.IsNaN(m) {
+			m = f.ev.gd[i]
+		}
+		r[off+k] = f.wGDS * (m - d) / d
 	}
 	return true
 }
@@ -155,7 +179,7 @@ func (f *fitter) residual(x, r []float64) bool {
 // scatter returns the rms ln ID residual and the rms relative gds error
 // (over the gds points) at p.
 func (f *fitter) scatter(p device.Params) (sID, sGDS float64) {
-	if f.ev.eval(p, false) != nil {
+	if f.ev.eval(p, true) != nil {
 		return 0, 0
 	}
 	for _, i := range f.idPts {
@@ -166,7 +190,11 @@ func (f *fitter) scatter(p device.Params) (sID, sGDS float64) {
 	}
 	for _, i := range f.gdsPts {
 		d := f.pr.pts[i].gds
-		e := (f.ev.gd[i] - d) / d
+		m := f.ev.modelGDS(i)
+		if math.IsNaN(m) {
+			m = f.ev.gd[i]
+		}
+		e := (m - d) / d
 		sGDS += e * e
 	}
 	return math.Sqrt(sID / float64(len(f.idPts))), math.Sqrt(sGDS / float64(max(len(f.gdsPts), 1)))

@@ -292,3 +292,86 @@ func TestBoundsMatchValidate(t *testing.T) {
 		}
 	}
 }
+
+// TestBins: data whose threshold and mobility move with length in a way
+// the model's own length terms cannot follow (a threshold that peaks at a
+// middle length, invented) must exceed the 5 % threshold with one set, and
+// fall to the 1 % noise with one set per length. Each length's threshold
+// comes back within 10 mV (as in TestRoundTrip) and its mobility within 5 %.
+func TestBins(t *testing.T) {
+	g := defaultGrid()
+	type lp struct{ vt0, u0 float64 }
+	per := map[float64]lp{180e-9: {0.40, 0.024}, 500e-9: {0.50, 0.030}, 2e-6: {0.44, 0.033}}
+	models := map[float64]func(vgs, vds, vbs, l float64) float64{}
+	for l, v := range per {
+		p := d180n()
+		p.VT0, p.U0 = v.vt0, v.u0
+		models[l] = ourModel(t, p, g.w, g.tempC)
+	}
+	tab := g.table(func(vgs, vds, vbs, l float64) float64 { return models[l](vgs, vds, vbs, l) }, 0.01, 9)
+	o := Options{Pol: device.NMOS, Base: d180n(), TNom: 300.15}
+	one, err := Fit(tab, o, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if one.Report.IDRMSPct <= BinThresholdPct || len(one.bins) != 0 {
+		t.Fatalf("one set: ID rms %.2f %% with %d bins, want above %g %% and none (Bins off)", one.Report.IDRMSPct, len(one.bins), BinThresholdPct)
+	}
+	o.Bins = true
+	res, err := Fit(tab, o, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("one set %.2f %% rms (%d iterations), per length %.2f %% (%d in all)", one.Report.IDRMSPct, one.Iterations, res.Report.IDRMSPct, res.Iterations)
+	for _, b := range res.bins {
+		t.Logf("bin %g: %+v", b.L, b.Params)
+	}
+	if len(res.bins) != 3 {
+		t.Fatalf("%d bins, want 3", len(res.bins))
+	}
+	if r := res.Report.IDRMSPct; r > 1.3 {
+		t.Errorf("per-length ID rms %.2f %%, want the 1 %% noise (≤ 1.3 %%)", r)
+	}
+	for _, b := range res.bins {
+		want := per[key(b.L)]
+		if math.Abs(b.Params.VT0-want.vt0) > 0.010 || math.Abs(b.Params.U0-want.u0) > 0.05*want.u0 {
+			t.Errorf("L = %g: thresh %.4f mobility %.4g, want %.4f, %.4g", b.L, b.Params.VT0, b.Params.U0, want.vt0, want.u0)
+		}
+	}
+	frag := res.Fragment()
+	if !strings.Contains(frag, "n.thresh@180n=") || !strings.Contains(frag, "n.thresh@2u=") {
+		t.Errorf("fragment %q lacks the bins' thresh@L keys", frag)
+	}
+}
+
+// TestFindingsNameMisfit: data with three times the base's channel-length
+// modulation, fitted with lenmod and dibl held at the base, must produce a
+// finding that gds is low at each length (the model's gds then is about
+// a third of the data's, λ·ID against 3·λ·ID, so "low" by about 60 %,
+// well past the 10 % that makes a finding) and that gain figures are
+// optimistic.
+func TestFindingsNameMisfit(t *testing.T) {
+	truth := d180n()
+	truth.LambdaL = 3 * truth.LambdaL
+	g := defaultGrid()
+	tab := g.table(ourModel(t, truth, g.w, g.tempC), 0.002, 4)
+	o := Options{Pol: device.NMOS, Base: d180n(), TNom: 300.15, Free: []string{"thresh", "mobility", "body", "mobred"}}
+	res, err := Fit(tab, o, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range []string{"180 nm", "500 nm", "2.00 µm"} {
+		found := false
+		for _, f := range res.Report.Findings {
+			if strings.Contains(f, "gds in saturation at L = "+l) && strings.Contains(f, "low") && strings.Contains(f, "optimistic") {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("no finding of low gds at L = %s in %q", l, res.Report.Findings)
+		}
+	}
+	if res.Report.GDSRMSPct < 40 {
+		t.Errorf("gds rms error %.1f %%, want about 60 %%", res.Report.GDSRMSPct)
+	}
+}

@@ -29,6 +29,14 @@ func (r Result) AppendJSON(dst []byte) []byte {
 	w.params(r.Start)
 	w.key("bins")
 	w.open('[')
+	for _, b := range r.bins {
+		w.open('{')
+		w.key("l")
+		w.num(b.L)
+		w.key("params")
+		w.params(b.Params)
+		w.close('}')
+	}
 	w.close(']')
 	w.key("fit")
 	w.open('{')
@@ -100,25 +108,39 @@ func (r Result) AppendJSON(dst []byte) []byte {
 
 // Fragment returns the overrides to append to a design fragment: the
 // parameters that differ from the base, by their ParamTable keys with the
-// polarity's prefix ("n.thresh=412.5m&n.mobility=…"), values written by
-// units.Exact so that they read back bit for bit.
+// polarity's prefix ("n.thresh=412.5m&n.mobility=…"), then for each
+// per-length bin the parameters that differ from the global set, with the
+// length after '@' ("n.thresh@500n=…"); values written by units.Exact so
+// that they read back bit for bit.
 func (r Result) Fragment() string {
 	var b []byte
+	b = appendOverrides(b, r.Pol, r.Params, r.Base, 0)
+	for _, bin := range r.bins {
+		b = appendOverrides(b, r.Pol, bin.Params, r.Params, bin.L)
+	}
+	return string(b)
+}
+
+func appendOverrides(b []byte, pol device.Polarity, p, base device.Params, l float64) []byte {
 	for _, info := range device.ParamTable {
-		v := *info.Field(&r.Params)
-		if v == *info.Field(&r.Base) {
+		v := *info.Field(&p)
+		if v == *info.Field(&base) {
 			continue
 		}
 		if len(b) > 0 {
 			b = append(b, '&')
 		}
-		b = append(b, r.Pol.String()...)
+		b = append(b, pol.String()...)
 		b = append(b, '.')
 		b = append(b, info.Key...)
+		if l > 0 {
+			b = append(b, '@')
+			b = units.AppendExact(b, l)
+		}
 		b = append(b, '=')
 		b = units.AppendExact(b, v)
 	}
-	return string(b)
+	return b
 }
 
 // jw writes compact JSON.

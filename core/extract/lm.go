@@ -31,7 +31,12 @@ type lmResult struct {
 
 const (
 	lmMaxIter = 100
-	lmTolCost = 1e-10 // relative cost decrease below which the fit has converged
+	lmTolCost = 1e-8 // relative cost decrease below which the fit has converged
+
+	// A fit that cannot follow the data crawls: it stops when five
+	// iterations together lowered the cost by less than 1e-4 of itself
+	// (a good fit converges quadratically long before this applies).
+	lmStallIter, lmStallTol = 5, 1e-4
 )
 
 func halfSumSq(r []float64) float64 {
@@ -65,7 +70,14 @@ func levenbergMarquardt(pb lmProblem, x0 []float64, progress func(done, total in
 	cost := halfSumSq(r)
 	lambda := 1e-3
 	res := lmResult{x: x, cost: cost}
+	var history [lmStallIter]float64
 	for it := 1; it <= lmMaxIter; it++ {
+		if it > lmStallIter {
+			if old := history[it%lmStallIter]; old-cost < lmStallTol*cost {
+				break
+			}
+		}
+		history[it%lmStallIter] = cost
 		res.iterations = it
 		// Forward differences on the transformed parameters; the step
 		// 1e-6·(1 + |x|) sits near √ε of the residuals, which are ln ID

@@ -43,6 +43,7 @@ type Result struct {
 	Cancelled  bool // the progress function asked to stop; Params are the best so far
 
 	plots plots
+	bins  []lengthBin
 }
 
 // Error says what the data lack for a fit.

@@ -33,7 +33,7 @@ type Report struct {
 	IDRMSPct   float64 // rms relative drain-current error, %
 	IDMaxPct   float64 // worst relative drain-current error, %
 	GmIDRMSPct float64 // rms relative error of gm/ID, %
-	GDSRMSPct  float64 // rms relative error of gds in saturation, %
+	GDSRMSPct  float64 // rms error of gds in saturation relative to the data's rms gds, 100·√(Σ(m − d)²/Σd²), %
 	Regions    Regions
 	Findings   []string
 }
@@ -42,13 +42,18 @@ type acc struct {
 	n        int
 	sum, max float64
 	mean     float64 // signed sum, for the bias of an error
+	worst    int     // point of the largest |e|
+	vals     []float64
 }
 
-func (a *acc) add(e float64) {
+func (a *acc) add(e float64, i int) {
 	a.n++
 	a.sum += e * e
 	a.mean += e
-	a.max = math.Max(a.max, math.Abs(e))
+	a.vals = append(a.vals, e)
+	if math.Abs(e) > a.max || a.n == 1 {
+		a.max, a.worst = math.Abs(e), i
+	}
 }
 
 func (a *acc) rms() float64 {
@@ -58,11 +63,45 @@ func (a *acc) rms() float64 {
 	return math.Sqrt(a.sum / float64(a.n))
 }
 
+// bias is the median signed error.
 func (a *acc) bias() float64 {
 	if a.n == 0 {
 		return 0
 	}
-	return a.mean / float64(a.n)
+	return median(a.vals)
+}
+
+// sums compares model and data gds in aggregate: Σ and Σ² over the points.
+// Ratios of sums stay meaningful where a differenced data gds of a flat
+// curve scatters around 0 and point-by-point relative errors would not
+// (and would, when only positive data values were kept, be biased).
+type sums struct {
+	n              int
+	dm, d, dm2, d2 float64
+}
+
+func (s *sums) add(m, d float64) {
+	s.n++
+	s.dm += m - d
+	s.d += d
+	s.dm2 += (m - d) * (m - d)
+	s.d2 += d * d
+}
+
+// biasPct is 100·Σ(m − d)/Σd; ok false when the data show no gds.
+func (s *sums) biasPct() (float64, bool) {
+	if s.n == 0 || !(s.d > 0) {
+		return 0, false
+	}
+	return 100 * s.dm / s.d, true
+}
+
+// rmsPct is 100·√(Σ(m − d)²/Σd²).
+func (s *sums) rmsPct() float64 {
+	if s.n == 0 || !(s.d2 > 0) {
+		return 0
+	}
+	return 100 * math.Sqrt(s.dm2/s.d2)
 }
 
 func (a *acc) region() RegionFit { return RegionFit{Points: a.n, IDRMSPct: a.rms(), IDMaxPct: a.max} }
@@ -73,73 +112,85 @@ func (f *fitter) report(p device.Params) (Report, plots, error) {
 	if err := ev.eval(p, true); err != nil {
 		return Report{}, plots{}, errorf("the fitted values are outside the model's range: " + err.Error())
 	}
-	var all, weak, mod, strong, tri, sat, gmid, gds acc
+	var all, weak, mod, strong, tri, sat, gmid acc
+	var gds sums
 	var gmidWeak acc
-	gdsByL := map[float64]*acc{}
+	gdsByL := map[float64]*sums{}
 	for _, i := range f.idPts {
 		pt := &f.pr.pts[i]
-		rep := ev.report(p, i)
+		rep := ev.report(i)
 		e := 100 * (ev.id[i] - pt.ID) / pt.ID
-		all.add(e)
+		all.add(e, i)
 		switch {
 		case rep.IF < 0.1:
-			weak.add(e)
+			weak.add(e, i)
 		case rep.IF > 10:
-			strong.add(e)
+			strong.add(e, i)
 		default:
-			mod.add(e)
+			mod.add(e, i)
 		}
 		if rep.Margin > 0 {
-			sat.add(e)
+			sat.add(e, i)
 		} else {
-			tri.add(e)
+			tri.add(e, i)
 		}
-		if pt.gm > 0 && ev.id[i] > 0 {
+		if mg := ev.modelGM(i); pt.gm > 0 && ev.id[i] > 0 && !math.IsNaN(mg) {
 			dm := pt.gm / pt.ID
-			eg := 100 * (ev.gm[i]/ev.id[i] - dm) / dm
+			eg := 100 * (mg/ev.id[i] - dm) / dm
 			if rep.Margin > 0 {
-				gmid.add(eg)
+				gmid.add(eg, i)
 				if rep.IF < 0.1 {
-					gmidWeak.add(eg)
+					gmidWeak.add(eg, i)
 				}
 			}
 		}
-		if rep.Margin > 0 && pt.gds > 0 {
-			eg := 100 * (ev.gd[i] - pt.gds) / pt.gds
-			gds.add(eg)
+		if mg := ev.modelGDS(i); rep.Margin > 0 && !math.IsNaN(pt.gds) && !math.IsNaN(mg) {
+			gds.add(mg, pt.gds)
 			l := key(f.pr.geos[pt.geo].l)
 			if gdsByL[l] == nil {
-				gdsByL[l] = &acc{}
+				gdsByL[l] = &sums{}
 			}
-			gdsByL[l].add(eg)
+			gdsByL[l].add(mg, pt.gds)
 		}
 	}
 	r := Report{
 		Points: all.n, IDRMSPct: all.rms(), IDMaxPct: all.max,
-		GmIDRMSPct: gmid.rms(), GDSRMSPct: gds.rms(),
+		GmIDRMSPct: gmid.rms(), GDSRMSPct: gds.rmsPct(),
 		Regions: Regions{Weak: weak.region(), Moderate: mod.region(), Strong: strong.region(),
 			Triode: tri.region(), Saturation: sat.region()},
 	}
-	r.Findings = findings(r, &gmidWeak, gdsByL)
+	worst := map[string]string{}
+	for k, a := range map[string]*acc{"weak": &weak, "moderate": &mod, "strong": &strong, "triode": &tri, "saturation": &sat} {
+		if a.n > 0 {
+			worst[k] = f.where(a.worst)
+		}
+	}
+	r.Findings = findings(r, worst, &gmidWeak, gdsByL)
 	return r, f.plots(p), nil
 }
 
+// where names the bias of point i for a finding.
+func (f *fitter) where(i int) string {
+	p := &f.pr.pts[i]
+	return "VGS = " + fmtSI(p.VGS, "V") + ", VDS = " + fmtSI(p.VDS, "V") + ", VBS = " + fmtSI(p.VBS, "V") + ", L = " + fmtSI(p.L, "m")
+}
+
 // findings writes what the numbers mean for a design.
-func findings(r Report, gmidWeak *acc, gdsByL map[float64]*acc) []string {
+func findings(r Report, worst map[string]string, gmidWeak *acc, gdsByL map[float64]*sums) []string {
 	var out []string
 	for _, reg := range []struct {
-		name, where string
-		fit         RegionFit
+		key, name, where string
+		fit              RegionFit
 	}{
-		{"weak inversion", "below IC 0.1", r.Regions.Weak},
-		{"moderate inversion", "between IC 0.1 and 10", r.Regions.Moderate},
-		{"strong inversion", "above IC 10", r.Regions.Strong},
-		{"triode", "below VDsat", r.Regions.Triode},
-		{"saturation", "above VDsat", r.Regions.Saturation},
+		{"weak", "weak inversion", "below IC 0.1", r.Regions.Weak},
+		{"moderate", "moderate inversion", "between IC 0.1 and 10", r.Regions.Moderate},
+		{"strong", "strong inversion", "above IC 10", r.Regions.Strong},
+		{"triode", "triode", "below VDsat", r.Regions.Triode},
+		{"saturation", "saturation", "above VDsat", r.Regions.Saturation},
 	} {
 		if reg.fit.Points > 0 && reg.fit.IDRMSPct > BinThresholdPct {
 			out = append(out, "Drain current in "+reg.name+" ("+reg.where+") is off by "+pct(reg.fit.IDRMSPct)+
-				" % rms (worst "+pct(reg.fit.IDMaxPct)+" %): bias currents and gm there are uncertain by about as much.")
+				" % rms (worst "+pct(reg.fit.IDMaxPct)+" % at "+worst[reg.key]+"): bias currents and gm there are uncertain by about as much.")
 		}
 	}
 	if gmidWeak.n >= 3 {
@@ -161,7 +212,7 @@ func findings(r Report, gmidWeak *acc, gdsByL map[float64]*acc) []string {
 		if a.n < 3 {
 			continue
 		}
-		if b := a.bias(); math.Abs(b) > 10 {
+		if b, ok := a.biasPct(); ok && math.Abs(b) > 10 {
 			word, effect := "high", "pessimistic (the model's output resistance is too low)"
 			if b < 0 {
 				word, effect = "low", "optimistic (the model's output resistance is too high)"
