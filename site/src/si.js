@@ -51,6 +51,8 @@ export function formatSI(v, digits = 4, unit = '') {
   if (v === null || v === undefined || Number.isNaN(v)) return '—';
   if (v === Infinity) return '∞';
   if (v === -Infinity) return '−∞';
+  // A gain is a plain ratio: 0.8418 V/V, never 841.8 mV/V.
+  if (unit === 'V/V') return `${Number(v.toPrecision(digits)).toString().replace('-', '−')}\u2009V/V`;
   const [p, e] = prefixFor(v);
   let m = v / 10 ** e;
   let text = Number(m.toPrecision(digits)).toString();

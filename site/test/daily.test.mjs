@@ -1,0 +1,157 @@
+// Browser tests of the page as a daily tool: no sideways scroll at phone,
+// tablet and desktop widths with every aid run, one place for each control
+// with a label that says what it is, and the readings the page writes.
+// Each test here failed before the fix it guards.
+import { test, before, after } from 'node:test';
+import assert from 'node:assert/strict';
+import { readFileSync } from 'node:fs';
+import { launch, open, afterEvaluation } from './browser.mjs';
+
+let b;
+let page;
+
+before(async () => {
+  b = await launch();
+  await b.context.setOffline(true);
+  page = b.context.pages()[0] || (await b.context.newPage());
+});
+
+after(async () => {
+  if (b) await b.close();
+});
+
+const WIDTHS = [390, 768, 1280];
+
+async function aidsReady() {
+  await page.waitForFunction(() => document.body.dataset.aids === 'ready', null, { timeout: 60000 });
+}
+
+async function runJob(button, stateKey) {
+  await page.click(button);
+  await page.waitForFunction((k) => document.body.dataset[k] && document.body.dataset[k] !== 'running', stateKey, { timeout: 120000 });
+}
+
+/** How far the document reaches past the window, in CSS pixels (0: no sideways scroll). */
+const overflow = () => page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+
+async function noSidewaysScroll(label) {
+  for (const width of WIDTHS) {
+    await page.setViewportSize({ width, height: 900 });
+    // two frames, so the charts' resize observers have run
+    await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
+    assert.equal(await overflow(), 0, `${label}: the page scrolls sideways at ${width} px`);
+  }
+}
+
+test('no sideways scroll at 390, 768 or 1280 px on any stage, before and after the aids run', async () => {
+  // Targets so that the sizing panel and the yield have something to show;
+  // 200 samples keep the Monte Carlo run short.
+  for (const stage of ['cs', 'cg', 'sf']) {
+    await page.setViewportSize({ width: 390, height: 900 });
+    await open(page, `v=1&stage=${stage}&cl=1p&t.gain=2&t.f3db=20M&t.idd=200u&mc=200`);
+    await aidsReady();
+    await noSidewaysScroll(`${stage}, aids not run`);
+    await runJob('#mc-run', 'mcState');
+    await runJob('#size-search', 'sizeState');
+    await noSidewaysScroll(`${stage}, Monte Carlo and sizing run`);
+  }
+  await page.setViewportSize({ width: 1280, height: 800 });
+});
+
+test('the left column holds only what shapes the design, and each setting has one place', async () => {
+  await open(page, 'v=1&stage=cs');
+  const groups = await page.$$eval('#controls fieldset.group', (fs) => fs.map((f) => f.dataset.group));
+  for (const g of ['design aids', 'targets', 'sizing']) assert.ok(!groups.includes(g), `left column has the ${g} group: ${groups}`);
+  for (const key of ['amp', 'mc', 'seed', 'sw', 'pin', 'vary', 't.gain', 'lo.w']) {
+    assert.equal(await page.locator(`#controls [data-key="${key}"]`).count(), 0, `${key} is in the left column as well as its aid panel`);
+  }
+  // The corner shapes the evaluation itself and has no aid panel of its own.
+  assert.equal(await page.locator('#controls [data-key="corner"]').count(), 1);
+  // One process-parameter disclosure, in the process group only.
+  const disclosures = await page.$$eval('#controls details.overrides', (ds) => ds.map((d) => d.closest('fieldset').dataset.group));
+  assert.deepEqual(disclosures, ['process']);
+  assert.match(await page.textContent('#overrides-summary'), /none changed/);
+  assert.equal(await page.locator('#controls details.overrides [data-key="t.gain"]').count(), 0);
+  // The aid panels keep their own fields.
+  for (const id of ['#aid-amp', '#aid-mc-n', '#aid-mc-seed', '#sweep-key', '#aid-vary-w']) assert.equal(await page.locator(id).count(), 1, `${id} missing`);
+});
+
+test('the override summary counts what the design sets; a compound unit gets no SI prefix', async () => {
+  await open(page, 'v=1&stage=cs&n.kf=2e-25&p.vt0=0.5');
+  assert.match(await page.textContent('#overrides-summary'), /\(2 changed of \d+\)/);
+  await page.click('#overrides-summary');
+  // kf is in V²·F: 2e-25, never "200y" or "2e-10f".
+  assert.equal(await page.inputValue('#k-n-kf'), '2e-25');
+  await open(page, 'v=1&stage=cs');
+  await page.click('#overrides-summary');
+  assert.equal(await page.inputValue('#k-n-kf'), '1e-25');
+});
+
+test('Monte Carlo says what Run will do before the first run, and draws no empty frames', async () => {
+  await open(page, 'v=1&stage=cs&mc=100&seed=3');
+  await aidsReady();
+  assert.equal(await page.locator('#mc-hists').isVisible(), false, 'histogram frames shown before any run');
+  assert.match(await page.textContent('#mc-before'), /Run draws 100 samples .*seed 3/);
+  await runJob('#mc-run', 'mcState');
+  assert.equal(await page.locator('#mc-hists').isVisible(), true);
+  assert.equal(await page.locator('#mc-before').isVisible(), false);
+});
+
+test('the exports are named for what they hold, and the Sweep panel exports its own table', async () => {
+  await open(page, 'v=1&stage=cs&bias=id&sw=id&sw.lo=10u&sw.hi=1m&sw.n=5&load=r&rd=10k');
+  await aidsReady();
+  assert.equal((await page.textContent('#export-csv')).trim(), 'Frequency response as CSV');
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.click('#sweep-csv')]);
+  const text = readFileSync(await dl.path(), 'utf8');
+  const lines = text.trim().split('\n').filter((l) => !l.startsWith('#'));
+  const head = lines[0].split(',');
+  assert.equal(head[0], 'id');
+  assert.equal(head[head.length - 1], 'error');
+  assert.equal(head.filter((c) => c === 'id').length, 1, `id twice in ${lines[0]}`);
+  assert.equal(lines.length, 6, 'a header and five rows');
+  // 1 mA through 10 kΩ cannot fit in 1.8 V: the last row says why.
+  const last = lines[5].split(',');
+  assert.equal(last[1], '', 'the 1 mA point has a gain');
+  assert.match(lines[5], /,[^,]*\w[^,]*$/, `no reason in ${lines[5]}`);
+});
+
+test('an infeasible spec says "no design meets every target" once', async () => {
+  await open(page, 'v=1&proc=d180&cl=1p&t.gain=20&t.f3db=50M&t.idd=200u');
+  await aidsReady();
+  await runJob('#size-search', 'sizeState');
+  const msg = await page.textContent('#size-message');
+  assert.equal((msg.match(/no design meets every target/gi) || []).length, 1, msg);
+});
+
+test("a follower's gain is written as plain V/V", async () => {
+  await open(page, 'v=1&stage=sf');
+  const gain = (await page.textContent('#card-gain .card-value')).replace('\u2009', ' ');
+  assert.match(gain, /^0\.\d+ V\/V$/, gain);
+});
+
+test('a source follower with a current sink biased by current shows vin and writes it', async () => {
+  await open(page, 'v=1&stage=sf&load=active&bias=id');
+  assert.equal(await page.locator('#controls [data-key="vin"]').isVisible(), true, 'no vin control');
+  assert.match(await page.evaluate(() => window.stagewrightPage.canonical()), /&vin=1\.3(&|$)/, 'the link (Copy link) leaves vin out');
+  await afterEvaluation(page, async () => {
+    await page.fill('#k-vin', '1.0');
+    await page.press('#k-vin', 'Enter');
+  });
+  const r = await page.evaluate(() => window.stagewrightPage.result());
+  assert.equal(r.load_op.region, 'triode', 'vin = 1.0 V should put the sink in triode');
+});
+
+test('nothing pinned stays nothing pinned after a design without a result', async () => {
+  await open(page, 'v=1&stage=cs&load=r&rd=10k');
+  await aidsReady();
+  for (const v of ['1M', '10k']) {
+    await afterEvaluation(page, async () => {
+      await page.fill('#k-rd', v);
+      await page.press('#k-rd', 'Enter');
+    });
+  }
+  await aidsReady();
+  assert.match(await page.textContent('#pin-state'), /Nothing pinned/);
+  assert.equal(await page.locator('#pin-compare').count(), 0);
+  assert.equal(await page.locator('#pin-clear').isDisabled(), true);
+});
