@@ -22,6 +22,11 @@ try {
     const sw = await page.evaluate(() => [document.documentElement.scrollWidth, innerWidth]);
     console.log(`${width}px: document ${sw[0]} px wide in a ${sw[1]} px window`);
     await page.screenshot({ path: join(out, `shot-${width}.png`), fullPage: true });
+    // and in pieces of two windows' height, for a viewer that scales a tall picture down
+    const height = await page.evaluate(() => document.documentElement.scrollHeight);
+    for (let y = 0, i = 0; y < height; y += 1800, i++) {
+      await page.screenshot({ path: join(out, `shot-${width}-${i}.png`), fullPage: true, clip: { x: 0, y, width, height: Math.min(1800, height - y) } });
+    }
   }
 } finally {
   await b.close();
