@@ -192,7 +192,8 @@ export function renderEstimates(box, r) {
           h(
             'tr',
             {},
-            h('th', { scope: 'row' }, EST_NAMES[k] || k.replace(/_/g, ' '), est[k].formula ? h('div', { class: 'formula', text: est[k].formula }) : null),
+            h('th', { scope: 'row' }, EST_NAMES[k] || k.replace(/_/g, ' '), est[k].formula ? h('div', { class: 'formula', text: est[k].formula }) : null,
+              est[k].caveat ? h('div', { class: 'caveat', 'data-estimate': k, text: est[k].caveat }) : null),
             h('td', { class: 'num', text: num(est[k].value, 'Hz') }),
             h('td', { class: 'num', text: num(est[k].exact, 'Hz') }),
             h('td', { class: 'num', text: pct(est[k].diff_pct) }),

@@ -155,3 +155,10 @@ test('nothing pinned stays nothing pinned after a design without a result', asyn
   assert.equal(await page.locator('#pin-compare').count(), 0);
   assert.equal(await page.locator('#pin-clear').isDisabled(), true);
 });
+
+test("an estimate whose assumption fails says so beside it", async () => {
+  await open(page, 'v=1&stage=cs&load=r&rd=10k&cl=1p');
+  const miller = await page.textContent('#estimates .caveat[data-estimate="miller_input_pole"]');
+  assert.match(miller, /output pole .* below the input pole/);
+  assert.equal(await page.locator('#estimates .caveat[data-estimate="output_pole"]').count(), 0);
+});
