@@ -1,14 +1,14 @@
 // The Stagewright page: wires the controls, the engine and the results.
 import './style.css';
 import { Engine, PAGE_VERSION } from './engine.js';
-import { Controls, defaultText } from './controls.js';
+import { Controls, defaultText, relevant } from './controls.js';
 import { drawSchematic } from './schematic.js';
 import { frequencyPlot, noisePlot } from './plots.js';
 import { drawSPlane } from './splane.js';
 import { renderOP, renderSmallSignal, renderMidband, renderEstimates, renderRoots, renderWarnings } from './results.js';
 import { download, sweepCSV } from './export.js';
 import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
-import { parseSI } from './si.js';
+import { parseSI, exactSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
 
@@ -94,20 +94,40 @@ function sameValue(a, b) {
   return x !== undefined && x === y;
 }
 
+// DC levels measured from ground: a polarity change mirrors them between
+// the rails (the p-type circuit is the n-type one upside down).
+const LEVELS = ['vin', 'vg', 'vout'];
+
 /**
  * Builds the fragment after the user changed one key. A change of stage,
  * polarity, load, bias mode or process keeps only the values that differ
- * from their defaults, so that the new topology gets its own defaults.
+ * from their defaults and that the new topology uses, so that it gets its
+ * own defaults for the rest. A stage change also drops a value whose
+ * meaning depends on the stage (a key with per-stage defaults, such as vin:
+ * the gate of a cs stage, the source level of a cg stage); a polarity
+ * change mirrors the DC levels (v → vdd − v).
  */
 function editedFragment(key, text, structural) {
   const pairs = [];
+  const now = (k) => (k === key ? text : state.values.get(k) ?? schemaDefault(k));
+  const stage = now('stage');
+  const polChange = key === 'pol' && text !== (state.values.get('pol') ?? schemaDefault('pol'));
+  const vdd = parseSI(now('vdd') || '').value;
   for (const [k, v] of state.values) {
     if (k === key) continue;
+    let value = v;
     if (structural && !STRUCTURAL.includes(k) && k !== 'v') {
       const def = schemaDefault(k);
       if (def === undefined || sameValue(def, v)) continue;
+      const info = state.schema.find((i) => i.key === k);
+      if (info && !relevant(info, stage, now('load'), now('bias'))) continue;
+      if (key === 'stage' && info && info.stage_defaults && Object.keys(info.stage_defaults).length) continue;
+      if (polChange && LEVELS.includes(k) && vdd !== undefined) {
+        const x = parseSI(v).value;
+        if (x !== undefined) value = exactSI(Math.min(vdd, Math.max(0, vdd - x)));
+      }
     }
-    pairs.push([k, v]);
+    pairs.push([k, value]);
   }
   pairs.push([key, text]);
   return joinFragment(pairs);

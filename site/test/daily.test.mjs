@@ -162,3 +162,23 @@ test("an estimate whose assumption fails says so beside it", async () => {
   assert.match(miller, /output pole .* below the input pole/);
   assert.equal(await page.locator('#estimates .caveat[data-estimate="output_pole"]').count(), 0);
 });
+
+const canonicalMap = () => page.evaluate(() => Object.fromEntries(window.stagewrightPage.splitFragment(window.stagewrightPage.canonical())));
+
+test('a polarity change mirrors the levels; a stage change keeps only what the new stage uses', async () => {
+  // vin = 0.8 V (not the default) on an n-type cs stage biased by its input level
+  await open(page, 'v=1&stage=cs&bias=vin&vin=0.8&rs=500&rd=20k');
+  await afterEvaluation(page, () => page.click('label[for="pick-pol-p"]'));
+  let c = await canonicalMap();
+  assert.equal(c.pol, 'p');
+  assert.equal(c.vin, '1', `vin ${c.vin}: 0.8 V above ground on n-type is 1.0 V (1.8 − 0.8) on p-type`);
+  assert.equal(c.rd, '20k', 'a value the new polarity uses is kept');
+  // cs → cg: rs (degeneration of a cs stage) has no place in a cg stage, and
+  // vin means another node there, so the cg default comes in.
+  await afterEvaluation(page, () => page.click('label[for="pick-stage-cg"]'));
+  c = await canonicalMap();
+  assert.equal(c.stage, 'cg');
+  assert.equal(c.rs, undefined, 'rs carried into a cg stage');
+  assert.notEqual(c.vin, '1', 'the cs input level carried into the cg source level');
+  assert.equal(c.rd, '20k');
+});
