@@ -3,7 +3,7 @@ import './style.css';
 import { Engine, PAGE_VERSION } from './engine.js';
 import { Controls, defaultText, relevant } from './controls.js';
 import { drawSchematic } from './schematic.js';
-import { frequencyPlot, noisePlot } from './plots.js';
+import { frequencyPlot, noisePlot, impedancePlot } from './plots.js';
 import { drawSPlane } from './splane.js';
 import { renderOP, renderSmallSignal, renderMidband, renderEstimates, renderRoots, renderWarnings } from './results.js';
 import { download, sweepCSV } from './export.js';
@@ -231,6 +231,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   document.body.classList.toggle('no-result', !r.ok);
   const shown = r.ok && state.plots.ac.update(r);
   if (r.ok) state.plots.noise.update(r);
+  if (r.ok) state.plots.z.update(r);
   const canonicalValues = fragmentMap(state.canonical); // parsed once: its process here, the controls' values below
   const proc = canonicalValues.get('proc');
   if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
@@ -269,6 +270,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     for (const id of ['midband', 'op', 'smallsignal', 'estimates']) clear($(id));
     state.plots.ac.update(null);
     state.plots.noise.update(null);
+    state.plots.z.update(null);
     clear($('roots'));
     drawSPlane($('splane'), [], []);
     document.body.dataset.state = 'no-result';
@@ -362,6 +364,10 @@ function setupToolbar() {
     const b = await state.plots.noise.png(`Noise density — ${state.canonical}`);
     if (b) download(b, 'stagewright-noise.png');
   });
+  $('png-z').addEventListener('click', async () => {
+    const b = await state.plots.z.png(`Input and output impedance — ${state.canonical}`);
+    if (b) download(b, 'stagewright-impedance.png');
+  });
   $('png-splane').addEventListener('click', () => svgToPng($('splane'), 'stagewright-poles-zeros.png'));
 }
 
@@ -395,6 +401,7 @@ async function main() {
   state.controls = new Controls($('pickers'), $('controls'), onEdit);
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
+  state.plots.z = impedancePlot($('plot-z'), $('readout-z'));
   setupToolbar();
   state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
   let schemaReady;

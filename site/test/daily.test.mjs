@@ -182,3 +182,13 @@ test('a polarity change mirrors the levels; a stage change keeps only what the n
   assert.notEqual(c.vin, '1', 'the cs input level carried into the cg source level');
   assert.equal(c.rd, '20k');
 });
+
+test('Zin and Zout are plotted, and the s-plane axes carry their values', async () => {
+  await open(page, 'v=1&stage=cg&load=r&rd=10k');
+  assert.equal(await page.locator('#plot-z canvas').count(), 1, 'no impedance plot');
+  assert.match(await page.textContent('#readout-z'), /\|Zin\| .*Ω.*\|Zout\|/);
+  const labels = await page.$$eval('#splane text', (ts) => ts.map((t) => t.textContent));
+  const ticks = labels.filter((t) => /^−?\d+(\.\d+)?[kMGT]?Hz$/.test(t));
+  assert.ok(ticks.length >= 2, `s-plane tick labels: ${labels}`);
+  assert.ok(ticks.some((t) => t.startsWith('−')), 'no tick on the left half-plane');
+});
