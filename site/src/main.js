@@ -2,13 +2,13 @@
 import './style.css';
 import { Engine, PAGE_VERSION } from './engine.js';
 import { Controls, defaultText, relevant } from './controls.js';
-import { drawSchematic } from './schematic.js';
+import { drawSchematic, annotateSchematic } from './schematic.js';
 import { frequencyPlot, noisePlot, impedancePlot } from './plots.js';
 import { drawSPlane } from './splane.js';
 import { renderOP, renderSmallSignal, renderMidband, renderEstimates, renderRoots, renderWarnings } from './results.js';
 import { download, sweepCSV } from './export.js';
 import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
-import { parseSI, exactSI } from './si.js';
+import { parseSI, exactSI, formatSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
 
@@ -254,12 +254,13 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   const picture = { stage: pick.stage, pol: v('pol'), load: pick.load, rs: rs > 0, rl: rl !== Infinity };
   const pictureKey = JSON.stringify(picture);
   if (pictureKey !== state.pictureKey) {
-    drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
+    state.anchors = drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
     $('schematic-caption').textContent = captionFor(pick.stage, v('pol'), pick.load);
     state.pictureKey = pictureKey;
   }
 
   renderWarnings($('warnings'), r);
+  annotateSchematic($('schematic'), state.anchors, r, formatSI);
   if (!r.ok) {
     state.renderGeneration++; // a pending second half of an earlier result must not fill the tables again
     const why = (r.error || err || {}).message || 'no operating point found';
@@ -336,6 +337,10 @@ function showNotice(fragment, problems, error) {
 }
 
 function setupToolbar() {
+  const opBox = $('schematic-op');
+  const showOP = () => $('schematic').classList.toggle('op-hidden', !opBox.checked);
+  opBox.addEventListener('change', showOP);
+  showOP();
   $('copy-link').addEventListener('click', async () => {
     const url = `${location.href.split('#')[0]}#${state.canonical || currentHash()}`;
     const out = $('copy-out');
@@ -432,6 +437,7 @@ main();
 // for the browser tests: the split fragment helper of the page
 window.stagewrightPage = {
   splitFragment,
+  formatSI,
   canonical: () => state.canonical,
   result: () => state.result,
   /** Times n evaluations of a fragment in the worker (ms each), for the benchmark test. */

@@ -192,3 +192,28 @@ test('Zin and Zout are plotted, and the s-plane axes carry their values', async 
   assert.ok(ticks.length >= 2, `s-plane tick labels: ${labels}`);
   assert.ok(ticks.some((t) => t.startsWith('−')), 'no tick on the left half-plane');
 });
+
+test('the schematic shows the operating point, follows an edit, and a toggle hides it', async () => {
+  await open(page, 'v=1&stage=cs&load=active&rs=100');
+  const read = () => page.$$eval('#schematic .sch-op text', (ts) => Object.fromEntries(ts.map((t) => [t.dataset.op, t.textContent])));
+  const r = await page.evaluate(() => window.stagewrightPage.result());
+  let op = await read();
+  const volts = (v) => page.evaluate((x) => window.stagewrightPage.formatSI(x, 3, 'V'), v);
+  for (const node of ['in', 'out', 'src', 'bias']) assert.equal(op[`node-${node}`], await volts(r.nodes[node]), `node ${node}`);
+  assert.match(op.current, /^↓ 100\s?µA$/);
+  assert.equal(op['region-M1'], 'saturation');
+  assert.equal(op['region-M2'], 'saturation');
+  // Given levels instead of a given current: with the default input level and
+  // load gate drive the load sources less than M1 would sink, so M1 leaves
+  // saturation (triode on d180, found by evaluating it), and the labels follow.
+  await afterEvaluation(page, () => page.click('label[for="pick-bias-vin"]'));
+  op = await read();
+  const r2 = await page.evaluate(() => window.stagewrightPage.result());
+  assert.equal(op['node-out'], await volts(r2.nodes.out));
+  assert.equal(op['region-M1'], r2.op.region);
+  assert.equal(op['region-M1'], 'triode');
+  assert.equal(await page.locator('#schematic .sch-op').isVisible(), true);
+  await page.uncheck('#schematic-op');
+  assert.equal(await page.locator('#schematic .sch-op').isVisible(), false, 'the toggle did not hide the operating point');
+  await page.check('#schematic-op');
+});
