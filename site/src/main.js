@@ -11,6 +11,7 @@ import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
 import { parseSI, exactSI, formatSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
+import { startSaved } from './saved.js';
 
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
@@ -408,6 +409,10 @@ async function main() {
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
   state.plots.z = impedancePlot($('plot-z'), $('readout-z'));
   setupToolbar();
+  startSaved({
+    box: $('saved-box'), engine: aidEngine, download, current: () => ({ result: state.result }),
+    open: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); },
+  });
   state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
   let schemaReady;
   let info;

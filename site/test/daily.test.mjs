@@ -5,10 +5,14 @@
 import { test, before, after } from 'node:test';
 import assert from 'node:assert/strict';
 import { readFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { join, dirname } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { launch, open, afterEvaluation } from './browser.mjs';
 
 let b;
 let page;
+const repo = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 
 before(async () => {
   b = await launch();
@@ -216,4 +220,57 @@ test('the schematic shows the operating point, follows an edit, and a toggle hid
   await page.uncheck('#schematic-op');
   assert.equal(await page.locator('#schematic .sch-op').isVisible(), false, 'the toggle did not hide the operating point');
   await page.check('#schematic-op');
+});
+
+test('saved designs survive a reload and round-trip through a file that the CLI reads', async () => {
+  await open(page, 'v=1&stage=cs&load=r&rd=10k');
+  await page.evaluate(() => localStorage.clear());
+  await page.reload();
+  await page.waitForFunction(() => document.body.dataset.state === 'ready');
+  await page.click('#saved-panel summary');
+  await page.click('#saved-save');
+  await afterEvaluation(page, () => page.click('label[for="pick-stage-sf"]'));
+  await page.click('#saved-save');
+  assert.equal(await page.locator('#saved-table tbody tr').count(), 2);
+  const first = page.locator('#saved-table tbody tr').first();
+  await first.locator('.saved-name').fill('my cs <b>stage</b>');
+  await first.locator('.saved-name').press('Enter');
+  // a reload: the list is still there, with the new name as plain text
+  await page.reload();
+  await page.waitForFunction(() => document.body.dataset.state === 'ready');
+  await page.click('#saved-panel summary');
+  assert.equal(await page.locator('#saved-table tbody tr').count(), 2);
+  assert.equal(await page.locator('#saved-table .saved-name').first().inputValue(), 'my cs <b>stage</b>');
+  assert.equal(await page.locator('#saved-table b').count(), 0, 'a name became markup');
+  const cells = await page.locator('#saved-table tbody tr').nth(1).locator('td').allTextContents();
+  assert.equal(cells[1], 'source follower');
+  assert.match(cells[2], /^0\.\d+\s?V\/V$/);
+  assert.match(cells[3], /Hz$/);
+  assert.match(cells[4], /W$/);
+  // reopen the first: the page shows that design
+  await afterEvaluation(page, () => page.locator('#saved-table .saved-open').first().click());
+  assert.match(await page.evaluate(() => window.stagewrightPage.canonical()), /stage=cs&/);
+  // export, and the command line reads the file: one ok line per design
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.click('#saved-export')]);
+  const file = await dl.path();
+  const text = readFileSync(file, 'utf8');
+  assert.match(text, /^\/\/ name: my cs <b>stage<\/b>$/m);
+  const run = spawnSync('go', ['run', './core/cmd/stagewright', 'eval', '-'], { cwd: repo, input: text, encoding: 'utf8' });
+  assert.equal(run.status, 0, `stagewright eval - exited ${run.status}: ${run.stderr}`);
+  const answers = run.stdout.trim().split('\n').map((l) => JSON.parse(l));
+  assert.deepEqual(answers.map((a) => a.ok), [true, true]);
+  // delete one
+  await page.locator('#saved-table .saved-delete').nth(1).click();
+  assert.equal(await page.locator('#saved-table tbody tr').count(), 1);
+  // import the exported file with bad lines mixed in: each is named by its line
+  const lines = text.trim().split('\n');
+  const mixed = [...lines, 'v=1&stage=xx', '', '// name: too much current', 'v=1&stage=cs&load=r&id=1m&rd=10k'].join('\n');
+  await page.setInputFiles('#saved-import', { name: 'mixed.txt', mimeType: 'text/plain', buffer: Buffer.from(mixed) });
+  await page.waitForFunction(() => document.body.dataset.savedImport === 'done');
+  const msg = await page.textContent('#saved-msg');
+  assert.match(msg, /2 designs added/, msg);
+  assert.match(msg, new RegExp(`line ${lines.length + 1}: stage`), msg);
+  assert.match(msg, new RegExp(`line ${lines.length + 4}: .*operating point`), msg);
+  assert.equal(await page.locator('#saved-table tbody tr').count(), 3);
+  assert.equal(await page.locator('#saved-table .saved-name').nth(1).inputValue(), 'my cs <b>stage</b>');
 });
