@@ -31,6 +31,11 @@ function axis(extra) {
 const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-6;
 // On a log axis, grid lines at decades only; the ticks still mark 2…9.
 const decadeGrid = { stroke: COLOURS.grid, width: 1, filter: (u, splits) => splits.map((v) => (isDecade(v) ? v : null)) };
+// The labels of a log axis see every split: uPlot's own thinning of a short
+// axis kept every n-th decade counted from its end, decadeLabels every n-th
+// counted from 10⁰, and where the two disagreed no label was left (seen at
+// 390 px: the noise plot's density axis had none).
+const allSplits = (u, splits) => splits;
 
 // Decade labels, thinned so they never overlap: every k-th decade where k
 // keeps about 64 CSS pixels per label.
@@ -152,7 +157,7 @@ export function frequencyPlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, db: { auto: true }, deg: { auto: true } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
         axis({ scale: 'db', label: 'magnitude (dB)', size: 56, values: (u, s) => s.map((v) => `${v}`) }),
         axis({ scale: 'deg', side: 1, label: 'phase (°)', size: 56, grid: { show: false }, values: (u, s) => s.map((v) => `${v}°`) }),
       ],
@@ -222,8 +227,8 @@ export function noisePlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
-        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
+        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
       ],
       series: [
         {},
@@ -271,8 +276,8 @@ export function impedancePlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
-        axis({ label: 'impedance (Ω)', size: 64, grid: decadeGrid, values: (u, s, i) => decadeLabels(u, s, i, 'Ω', 2) }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
+        axis({ label: 'impedance (Ω)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, 'Ω', 2) }),
       ],
       series: [
         {},
