@@ -1,9 +1,14 @@
 # Stagewright build. `make run` serves the page, `make test` runs every test.
 GO ?= go
 
-.PHONY: test test-go vet fmt-check run site bench fuzz random-full mutants
+.PHONY: test test-go vet fmt-check mod-check run site bench fuzz random-full mutants
 
-test: fmt-check vet test-go test-web
+test: fmt-check mod-check vet test-go test-web
+
+# go.mod and go.sum as go mod tidy leaves them (a direct dependency marked
+# indirect, or a stale sum, fails the build here rather than in a later tidy).
+mod-check:
+	@$(GO) mod tidy -diff || { echo "go.mod or go.sum is untidy: run go mod tidy"; exit 1; }
 
 test-go:
 	$(GO) test ./core/... ./bench

@@ -2,7 +2,10 @@ package main
 
 import (
 	"encoding/json"
+	"go/parser"
+	"go/token"
 	"math"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -254,4 +257,33 @@ func BenchmarkEvaluateJSON(b *testing.B) {
 func nan() float64 {
 	zero := 0.0
 	return zero / zero
+}
+
+// The bridge reaches the model through core/design (and the aids through
+// their own packages), never the layers below it: the process list once
+// came straight from core/device.
+func TestBridgeSkipsTheModelLayers(t *testing.T) {
+	files, err := filepath.Glob("*.go")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no Go files: %v", err)
+	}
+	below := []string{"device", "circuit", "stage", "dense", "fastmath", "units"}
+	fset := token.NewFileSet()
+	for _, f := range files {
+		if strings.HasSuffix(f, "_test.go") {
+			continue
+		}
+		file, err := parser.ParseFile(fset, f, nil, parser.ImportsOnly)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, imp := range file.Imports {
+			path := strings.Trim(imp.Path.Value, `"`)
+			for _, b := range below {
+				if path == "stagewright/core/"+b {
+					t.Errorf("%s imports %s; the bridge reaches the model through core/design", f, path)
+				}
+			}
+		}
+	}
 }

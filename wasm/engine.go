@@ -4,7 +4,6 @@ import (
 	"strings"
 
 	"stagewright/core/design"
-	"stagewright/core/device"
 	"stagewright/core/jsonenc"
 )
 
@@ -19,11 +18,11 @@ func schema(proc string) Response {
 	if proc == "" {
 		proc = design.Default("").Process
 	}
-	if _, ok := device.Builtin(proc); !ok {
+	if !design.IsProcess(proc) {
 		return Response{Error: &ErrorInfo{
 			Code:    CodeRequest,
 			Key:     "proc",
-			Message: "schema: unknown process " + quoteShort(proc) + " (built in: " + strings.Join(device.BuiltinNames(), ", ") + ")",
+			Message: "schema: unknown process " + quoteShort(proc) + " (built in: " + strings.Join(design.Processes(), ", ") + ")",
 		}}
 	}
 	return Response{Result: design.Schema(proc)}

@@ -300,3 +300,38 @@ func TestSweepPointCount(t *testing.T) {
 		}
 	}
 }
+
+// A hand estimate whose assumption fails says so beside it: the Miller
+// input pole of a common-source stage assumes the output pole lies well
+// above the input pole, which a large load capacitance undoes (and then the
+// estimate is far off); with a large source resistance the input pole is the
+// slow one, and then the output-pole estimate is the one that says so.
+func TestEstimateCaveats(t *testing.T) {
+	for _, tc := range []struct {
+		frag          string
+		warned, quiet string
+	}{
+		{"stage=cs&load=r&rd=10k&cl=1p", "miller_input_pole", "output_pole"},
+		{"stage=cs&load=r&rd=10k&cl=10f&rsig=100k", "output_pole", "miller_input_pole"},
+	} {
+		r := Evaluate(mustDecode(t, tc.frag))
+		if !r.OK {
+			t.Fatalf("%s: %v", tc.frag, r.Error)
+		}
+		w, q := r.Estimate[tc.warned], r.Estimate[tc.quiet]
+		if w.Caveat == "" || !strings.Contains(w.Caveat, "does not hold") {
+			t.Errorf("%s: %s has no caveat (off by %.1f %%)", tc.frag, tc.warned, float64(w.DiffPct))
+		}
+		// The caveat is there because the estimate is far off: more than
+		// 20 % here, where the poles lie 100× or more apart.
+		if math.Abs(float64(w.DiffPct)) < 20 {
+			t.Errorf("%s: %s off by only %.1f %% yet warned", tc.frag, tc.warned, float64(w.DiffPct))
+		}
+		if q.Caveat != "" || math.Abs(float64(q.DiffPct)) > 5 {
+			t.Errorf("%s: %s caveat %q, off by %.1f %%; want none and within 5 %%", tc.frag, tc.quiet, q.Caveat, float64(q.DiffPct))
+		}
+		if !strings.Contains(string(r.JSON()), `"caveat":"`) {
+			t.Errorf("%s: the JSON carries no caveat", tc.frag)
+		}
+	}
+}

@@ -1,12 +1,15 @@
 package design
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
+	"strconv"
 
 	"stagewright/core/circuit"
 	"stagewright/core/device"
 	"stagewright/core/stage"
+	"stagewright/core/units"
 )
 
 // crossing returns the frequency where y crosses level, interpolated
@@ -111,6 +114,17 @@ func estimates(spec stage.Spec, nw *circuit.Network, m1 device.Report, mb circui
 			pout := 1 / (2 * math.Pi * rout * (cOut + cIO*(1+1/av)))
 			add("miller_input_pole", pin, nearestPole(pin), "1/(2π·Rsig·[Cgs+(1+gm·Rout')·Cgd])")
 			add("output_pole", pout, nearestPole(pout), "1/(2π·Rout'·[Cout+Cgd·(1+1/(gm·Rout'))])")
+			// Each formula holds while its own node is the slow one: the Miller
+			// factor 1+gm·Rout' needs the output to follow the input at the
+			// midband gain up to the input pole, so the output pole must lie
+			// well above it; the output-pole formula needs the input node held
+			// by Rsig, so the input pole must lie well above the output pole.
+			if r := pout / pin; r < poleSeparation {
+				caveat(out, "miller_input_pole", fmt.Sprintf("the Miller estimate assumes the output pole lies well above the input pole (at least %g×); here the output pole (%s) is %s the input pole, as when the load capacitance dominates, so Cgd is not multiplied by the midband gain and the estimate does not hold", float64(poleSeparation), hzText(pout), ratioText(r)))
+			}
+			if r := pin / pout; r < poleSeparation {
+				caveat(out, "output_pole", fmt.Sprintf("the output-pole estimate assumes the input pole lies well above it (at least %g×); here the input pole (%s) is %s the output pole, so the estimate does not hold", float64(poleSeparation), hzText(pin), ratioText(r)))
+			}
 			add("rhp_zero", gm/(2*math.Pi*cIO), nearestZero(true), "gm/(2π·Cgd)")
 		}
 	case stage.CG:
@@ -127,8 +141,51 @@ func estimates(spec stage.Spec, nw *circuit.Network, m1 device.Report, mb circui
 	// Open-circuit time constants: Σ Ri0·Ci = tr(G⁻¹C).
 	if tau := traceGinvC(nw); tau > 0 {
 		add("octc_f3db", 1/(2*math.Pi*tau), float64(ac.F3dB), "1/(2π·Σ Ri0·Ci)")
+		// Σ Ri0·Ci is the sum of the pole time constants less the zeros':
+		// it gives f3db when one pole dominates (and no zero is near it).
+		if f1, f2, ok := twoSlowestPoles(poles); ok && f2/f1 < poleSeparation {
+			caveat(out, "octc_f3db", fmt.Sprintf("the time-constant estimate assumes one dominant pole; here the second pole (%s) is %s the first (%s), so the estimate is low", hzText(f2), ratioText(f2/f1), hzText(f1)))
+		}
 	}
 	return out
+}
+
+// poleSeparation is how far apart (a frequency ratio) two poles must lie for
+// a one-pole hand estimate of either to be taken at its word: at 4× the
+// neglected pole moves the estimate by some 20 %, at 10× by under 10 %
+// (for two real poles, common practice).
+const poleSeparation = 4
+
+func caveat(out map[string]Est, name, text string) {
+	if e, ok := out[name]; ok {
+		e.Caveat = text
+		out[name] = e
+	}
+}
+
+func twoSlowestPoles(poles []complex128) (f1, f2 float64, ok bool) {
+	f1, f2 = math.Inf(1), math.Inf(1)
+	for _, p := range poles {
+		f := cmplx.Abs(p) / (2 * math.Pi)
+		switch {
+		case f < f1:
+			f1, f2 = f, f1
+		case f < f2:
+			f2 = f
+		}
+	}
+	return f1, f2, !math.IsInf(f2, 0) && f1 > 0
+}
+
+func hzText(f float64) string { return units.Engineering(f, 3, "Hz") }
+
+// ratioText says how a ratio below poleSeparation reads: "only 2.3×" above
+// one, "below" at or under one.
+func ratioText(r float64) string {
+	if r <= 1 {
+		return "below"
+	}
+	return "only " + strconv.FormatFloat(r, 'f', 1, 64) + "×"
 }
 
 func traceGinvC(nw *circuit.Network) float64 {

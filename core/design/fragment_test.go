@@ -1092,3 +1092,25 @@ func TestCornerInProcess(t *testing.T) {
 		t.Errorf("at a fixed input level the ff drain current %v should exceed the ss one %v", fast.OP.ID, slow.OP.ID)
 	}
 }
+
+// A source follower whose current sink sets the drain current still has its
+// gate at vin: the key applies (the page shows it, the link writes it) and
+// moving it moves the operating point (vin = 1.0 V leaves the sink in triode
+// on d180, found by evaluating it).
+func TestFollowerWithSinkUsesVin(t *testing.T) {
+	for _, bias := range []string{"id", "gmid", "vin"} {
+		frag := "stage=sf&load=active&bias=" + bias
+		r := Evaluate(mustDecode(t, frag))
+		if !strings.Contains(r.Design, "&vin=") {
+			t.Errorf("%s: canonical %q leaves vin out", frag, r.Design)
+		}
+	}
+	hi := Evaluate(mustDecode(t, "stage=sf&load=active&bias=id&vin=1.3"))
+	lo := Evaluate(mustDecode(t, "stage=sf&load=active&bias=id&vin=1.0"))
+	if !hi.OK || !lo.OK || hi.LoadOP == nil || lo.LoadOP == nil {
+		t.Fatalf("no result: %v %v", hi.Error, lo.Error)
+	}
+	if hi.LoadOP.Region != "saturation" || lo.LoadOP.Region != "triode" {
+		t.Errorf("sink region at vin 1.3 V %q, at 1.0 V %q; want saturation, triode", hi.LoadOP.Region, lo.LoadOP.Region)
+	}
+}

@@ -263,8 +263,8 @@ var keyTable = [...]keyDef{
 	},
 	{
 		name: "vin", group: GroupBias, label: "input DC level", unit: "V",
-		doc:  "Input DC level, V: the gate of a cs or sf stage, the signal source for a cg stage (bias vin).",
-		when: []Condition{{Biases: []string{string(BiasVin)}}},
+		doc:  "Input DC level, V: the gate of a cs or sf stage, the signal source for a cg stage (bias vin; a source follower with a current-sink load uses it in every bias mode, since the sink sets the current).",
+		when: []Condition{{Biases: []string{string(BiasVin)}}, {Stages: []string{string(SourceFollower)}, Loads: []string{string(LoadActive)}}},
 		span: upToVDD,
 		def:  func(pr *device.Process, d *Design) float64 { v, _ := inputDefaults(pr, d); return v },
 		get:  func(d *Design) float64 { return d.Vin },

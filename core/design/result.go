@@ -164,6 +164,9 @@ type Est struct {
 	Exact   Num    `json:"exact"`
 	DiffPct Num    `json:"diff_pct"`
 	Formula string `json:"formula"`
+	// Caveat says, when it is not empty, which assumption of the formula
+	// fails for this design (so that a large difference is not a surprise).
+	Caveat string `json:"caveat,omitempty"`
 }
 
 // Noise is the noise analysis: densities in V/√Hz over the sweep (the

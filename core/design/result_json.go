@@ -322,6 +322,10 @@ func (r *Result) AppendJSON(b []byte) []byte {
 			w.num(e.DiffPct)
 			w.key("formula")
 			w.str(e.Formula)
+			if e.Caveat != "" {
+				w.key("caveat")
+				w.str(e.Caveat)
+			}
 			w.close('}')
 		}
 		w.close('}')

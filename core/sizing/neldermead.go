@@ -11,8 +11,11 @@ import (
 // x0 and x0 + step along each axis. It stops after budget evaluations of f,
 // when stop returns true, or when the simplex has shrunk below tol in every
 // coordinate and its values agree within tol. It returns the best point and
-// value. (gonum's optimize package would pull in a module this build does
-// not carry, so the method is written out here; it is short.)
+// value. It is ours rather than gonum's optimize.NelderMead because that
+// one, measured in this build, gave the same designs at the same speed per
+// evaluation but added 207 KB (54 KB compressed, 4.4 %) to the engine the
+// page downloads and, through stat/distmv, a further module
+// (golang.org/x/tools); the contributor guide has the figures.
 func nelderMead(f func([]float64) float64, x0 []float64, step float64, budget int, tol float64, stop func() bool) ([]float64, float64) {
 	n := len(x0)
 	simplex := make([][]float64, n+1)

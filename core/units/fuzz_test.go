@@ -16,7 +16,7 @@ func FuzzParse(f *testing.F) {
 	for _, s := range []string{
 		"4.7k", "180n", "2.2p", "1e-3", "10u", "10µ", "10μ", "1M", "1G", "100f", "-0.5", "3.3m",
 		"", " 1", "4.7kk", "10uF", "4k7", "NaN", "-Inf", "0x1p3", "1_000", "1e400", "1e-400",
-		"1e3k", "1.2.3", "--1", "5e-324", "-0", "1\xff",
+		"1e3k", "1.2.3", "--1", "5e-324", "-0", "1\xff", "20K", "1meg",
 	} {
 		f.Add(s)
 	}
@@ -38,7 +38,7 @@ func FuzzParse(f *testing.F) {
 		if back, err := Parse(Exact(v)); err != nil || math.Float64bits(back) != math.Float64bits(v) {
 			t.Fatalf("Parse(%q) = %v; Exact gives %q, read back as %v, %v", s, v, Exact(v), back, err)
 		}
-		if strings.ContainsAny(s, "fpnumkMGµμ") {
+		if strings.ContainsAny(s, "fpnumkKMGµμ") { // K: kilo as people type it
 			return
 		}
 		if ref, err := strconv.ParseFloat(s, 64); err != nil || math.Float64bits(ref) != math.Float64bits(v) {

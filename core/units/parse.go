@@ -30,6 +30,9 @@ var readPrefixes = [...]struct {
 	{"f", -15}, {"p", -12}, {"n", -9},
 	{"u", -6}, {"µ", -6}, {"μ", -6}, // u, micro sign U+00B5, Greek mu U+03BC
 	{"m", -3}, {"k", 3}, {"M", 6}, {"G", 9},
+	// K is no SI prefix, but people type 20K for 20 k; no prefix (and no
+	// unit written here) is K, so it cannot be misread.
+	{"K", 3},
 }
 
 // unitSymbols are unit names a user may type after a number; Parse names
@@ -37,7 +40,8 @@ var readPrefixes = [...]struct {
 var unitSymbols = [...]string{"F", "H", "V", "A", "W", "Hz", "s", "S", "Ω", "Ω", "ohm", "Ohm"}
 
 // Parse reads a decimal number with an optional SI prefix: "4.7k", "180n",
-// "2.2p", "10u", "10µ", "10μ", "1M", "1G", "100f", "3.3m", "-0.5", "1e-3".
+// "2.2p", "10u", "10µ", "10μ", "1M", "1G", "100f", "3.3m", "-0.5", "1e-3";
+// "20K" is read as "20k".
 // The result is in plain SI units ("4.7k" is 4700) and is the float64
 // nearest to the decimal value written, as strconv.ParseFloat rounds it.
 //
@@ -115,6 +119,9 @@ scan:
 // readPrefix returns the power of ten of the prefix that is all of rest, the
 // text after the digits of s, or says why rest is not a prefix.
 func readPrefix(s, rest string, hasExponent bool) (int, error) {
+	if strings.EqualFold(rest, "meg") || strings.EqualFold(rest, "mega") {
+		return 0, explain(s, fmt.Sprintf("%q is not read: write M for mega (%q)", rest, s[:len(s)-len(rest)]+"M"))
+	}
 	for _, p := range readPrefixes {
 		if !strings.HasPrefix(rest, p.symbol) {
 			continue

@@ -26,6 +26,8 @@ func TestParseAccepts(t *testing.T) {
 		{"10μ", "10e-6"}, // Greek small letter mu U+03BC
 		{"20u", "20e-6"},
 		{"1M", "1e6"},
+		{"20K", "20e3"}, // K for kilo, as people type it
+		{"4.7K", "4.7e3"},
 		{"1G", "1e9"},
 		{"100f", "100e-15"},
 		{"-0.5", "-0.5"},
@@ -75,7 +77,9 @@ func TestParseRejects(t *testing.T) {
 		{"10V", `unit "V": units are not written (write "10")`},
 		{"5Hz", `unit "Hz"`},
 		{"4k7", "write the decimal point"},
-		{"1Meg", `unknown suffix "Meg"`},
+		{"1Meg", `write M for mega ("1M")`},
+		{"1meg", `write M for mega`},
+		{"1KK", `unknown suffix "KK"`},
 		{"1T", `unknown suffix "T"`},
 		{"1x", `unknown suffix "x"`},
 		{" 4.7k", "contains a space"},

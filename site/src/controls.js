@@ -8,6 +8,19 @@ import { parseSI, formatSI, exactSI, roundSig } from './si.js';
 const SLIDER_STEPS = 400; // positions of a slider; an arrow key moves one step
 const PICKERS = ['stage', 'pol', 'load', 'bias']; // shown above the schematic
 const HIDDEN = ['v']; // the format version is not a control
+// Groups whose settings belong to one design-aid panel, which shows them
+// (transfer: amp; Monte Carlo: mc, seed; sweep: sw…; pin; sizing: t.*,
+// vary, lo.*, hi.*): the left column holds only what shapes the design.
+const AID_GROUPS = ['design aids', 'targets', 'sizing'];
+// A key of an aid group that shapes the evaluation itself, and the group of
+// the left column that shows it.
+const LEFT_GROUP = { corner: 'process' };
+const GROUP_TITLES = { sweep: 'Frequency sweep and noise band' };
+/** Whether a key overrides a device parameter of the process (n.* or p.*). */
+export const isOverride = (key) => /^[np]\./.test(key);
+// A unit with a power or a product (V²·F, F/m², m²/(V·s), m⁻³) takes no SI
+// prefix: its value is shown in plain or exponent form (1e-25, not 1e-10f).
+const plainUnit = (unit) => /[²³⁻·]/.test(unit || '');
 
 const CHOICE_WORDS = {
   stage: { cs: 'common source', cg: 'common gate', sf: 'source follower' },
@@ -97,6 +110,7 @@ function displayText(info, text) {
   const r = parseSI(text);
   if (r.error) return text;
   if (info.integer) return String(r.value);
+  if (plainUnit(info.unit)) return Number(r.value.toPrecision(4)).toString().replace('e+', 'e');
   return formatSI(r.value, 4).replace('\u2009', '').replace('−', '-');
 }
 
@@ -128,7 +142,8 @@ export class Controls {
     const groups = new Map();
     for (const info of schema) {
       if (PICKERS.includes(info.key) || HIDDEN.includes(info.key)) continue;
-      const g = info.group || 'other';
+      const g = LEFT_GROUP[info.key] || info.group || 'other';
+      if (AID_GROUPS.includes(g)) continue;
       if (!groups.has(g)) groups.set(g, []);
       groups.get(g).push(info);
     }
@@ -136,12 +151,16 @@ export class Controls {
     const rank = (g) => (order.includes(g) ? order.indexOf(g) : order.length);
     const sorted = [...groups].sort((a, b) => rank(a[0]) - rank(b[0]));
     for (const [group, infos] of sorted) {
-      const plain = infos.filter((i) => !i.key.includes('.'));
-      const overrides = infos.filter((i) => i.key.includes('.'));
-      const fs = h('fieldset', { class: 'group', 'data-group': group }, h('legend', { text: group.charAt(0).toUpperCase() + group.slice(1) }));
+      const plain = infos.filter((i) => !isOverride(i.key));
+      const overrides = infos.filter((i) => isOverride(i.key));
+      const title = GROUP_TITLES[group] || group.charAt(0).toUpperCase() + group.slice(1);
+      const fs = h('fieldset', { class: 'group', 'data-group': group }, h('legend', { text: title }));
       for (const info of plain) fs.appendChild(this.control(info));
       if (overrides.length) {
-        const det = h('details', { class: 'overrides' }, h('summary', { text: `device parameters of the process (${overrides.length} overrides)` }));
+        // The summary counts the parameters the design sets (see show).
+        this.overrideSummary = h('summary', { id: 'overrides-summary', text: 'device parameters of the process' });
+        this.overrideKeys = overrides.map((i) => i.key);
+        const det = h('details', { class: 'overrides' }, this.overrideSummary);
         for (const pol of ['n', 'p']) {
           const these = overrides.filter((i) => i.key.startsWith(pol + '.'));
           if (!these.length) continue;
@@ -263,6 +282,11 @@ export class Controls {
    */
   show(values, { stage, load, bias }, badKeys = new Set()) {
     this.values = values;
+    if (this.overrideSummary) {
+      const set = this.overrideKeys.filter((k) => values.has(k)).length;
+      const text = `device parameters of the process (${set ? `${set} changed` : 'none changed'} of ${this.overrideKeys.length})`;
+      if (this.overrideSummary.textContent !== text) this.overrideSummary.textContent = text;
+    }
     for (const [key, entry] of this.rows) {
       const info = entry.info;
       const rel = relevant(info, stage, load, bias);
@@ -307,6 +331,9 @@ export class Controls {
 
 export function defaultText(info, stage) {
   if (info.default_word !== undefined && info.default_word !== '') return info.default_word;
+  // A text key (pin) is empty by default; its number default 0 is no value
+  // (read as '0' it was a pinned design that nobody pinned).
+  if (info.text) return '';
   if (stage && info.stage_defaults && info.stage_defaults[stage] !== undefined) return exactSI(Number(info.stage_defaults[stage]));
   if (info.default === null || info.default === undefined) return infOK(info) ? 'inf' : '';
   return exactSI(Number(info.default));

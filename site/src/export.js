@@ -1,5 +1,6 @@
 // Downloads: the sweep as CSV, the result as JSON, a plot as PNG. Files are
 // made in the page and offered through a Blob URL; nothing is sent anywhere.
+import { exactSI } from './si.js';
 
 export function download(blob, name) {
   const url = URL.createObjectURL(blob);
@@ -42,5 +43,28 @@ export function sweepCSV(r) {
     const row = rows.get(f);
     lines.push([f, ...cols.map((c) => cellText(row[c]))].join(','));
   }
+  return lines.join('\n') + '\n';
+}
+
+/**
+ * The Sweep panel's table as CSV, in the columns of `stagewright sweep -csv`:
+ * the swept input, each figure (one that is the input itself is not written
+ * again), and last the reason a point has no result.
+ */
+export function figureSweepCSV(res, design = '') {
+  const reasons = new Map();
+  for (const f of res.failures || []) {
+    const i = f.indexOf(': ');
+    if (i > 0) reasons.set(f.slice(0, i), f.slice(i + 2));
+  }
+  const values = res.values || [];
+  const same = (s) => values.every((v, i) => s.values[i] == null || Math.abs(s.values[i] - v) <= 1e-9 * Math.abs(v));
+  const series = (res.series || []).filter((s) => s.name !== res.key || !same(s));
+  const head = [res.key, ...series.map((s) => (s.name === res.key ? `${s.name} (figure)` : s.name)), 'error'];
+  const quote = (t) => (/[",\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t);
+  const lines = [`# Stagewright sweep of ${res.key} for design ${design}`, head.map(quote).join(',')];
+  values.forEach((v, i) => {
+    lines.push([v, ...series.map((s) => cellText(s.values[i])), quote(reasons.get(`${res.key}=${exactSI(v)}`) || '')].join(','));
+  });
   return lines.join('\n') + '\n';
 }

@@ -1,16 +1,17 @@
 // The Stagewright page: wires the controls, the engine and the results.
 import './style.css';
 import { Engine, PAGE_VERSION } from './engine.js';
-import { Controls, defaultText } from './controls.js';
-import { drawSchematic } from './schematic.js';
-import { frequencyPlot, noisePlot } from './plots.js';
+import { Controls, defaultText, relevant } from './controls.js';
+import { drawSchematic, annotateSchematic } from './schematic.js';
+import { frequencyPlot, noisePlot, impedancePlot } from './plots.js';
 import { drawSPlane } from './splane.js';
 import { renderOP, renderSmallSignal, renderMidband, renderEstimates, renderRoots, renderWarnings } from './results.js';
 import { download, sweepCSV } from './export.js';
 import { fragmentMap, joinFragment, splitFragment } from './fragment.js';
-import { parseSI } from './si.js';
+import { parseSI, exactSI, formatSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
+import { startSaved } from './saved.js';
 
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
@@ -94,20 +95,40 @@ function sameValue(a, b) {
   return x !== undefined && x === y;
 }
 
+// DC levels measured from ground: a polarity change mirrors them between
+// the rails (the p-type circuit is the n-type one upside down).
+const LEVELS = ['vin', 'vg', 'vout'];
+
 /**
  * Builds the fragment after the user changed one key. A change of stage,
  * polarity, load, bias mode or process keeps only the values that differ
- * from their defaults, so that the new topology gets its own defaults.
+ * from their defaults and that the new topology uses, so that it gets its
+ * own defaults for the rest. A stage change also drops a value whose
+ * meaning depends on the stage (a key with per-stage defaults, such as vin:
+ * the gate of a cs stage, the source level of a cg stage); a polarity
+ * change mirrors the DC levels (v → vdd − v).
  */
 function editedFragment(key, text, structural) {
   const pairs = [];
+  const now = (k) => (k === key ? text : state.values.get(k) ?? schemaDefault(k));
+  const stage = now('stage');
+  const polChange = key === 'pol' && text !== (state.values.get('pol') ?? schemaDefault('pol'));
+  const vdd = parseSI(now('vdd') || '').value;
   for (const [k, v] of state.values) {
     if (k === key) continue;
+    let value = v;
     if (structural && !STRUCTURAL.includes(k) && k !== 'v') {
       const def = schemaDefault(k);
       if (def === undefined || sameValue(def, v)) continue;
+      const info = state.schema.find((i) => i.key === k);
+      if (info && !relevant(info, stage, now('load'), now('bias'))) continue;
+      if (key === 'stage' && info && info.stage_defaults && Object.keys(info.stage_defaults).length) continue;
+      if (polChange && LEVELS.includes(k) && vdd !== undefined) {
+        const x = parseSI(v).value;
+        if (x !== undefined) value = exactSI(Math.min(vdd, Math.max(0, vdd - x)));
+      }
     }
-    pairs.push([k, v]);
+    pairs.push([k, value]);
   }
   pairs.push([key, text]);
   return joinFragment(pairs);
@@ -211,6 +232,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   document.body.classList.toggle('no-result', !r.ok);
   const shown = r.ok && state.plots.ac.update(r);
   if (r.ok) state.plots.noise.update(r);
+  if (r.ok) state.plots.z.update(r);
   const canonicalValues = fragmentMap(state.canonical); // parsed once: its process here, the controls' values below
   const proc = canonicalValues.get('proc');
   if (proc && proc !== state.schemaProc) loadSchema(proc).then(() => render(response, fragment, fromLink, ms, pageProblems));
@@ -233,12 +255,13 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
   const picture = { stage: pick.stage, pol: v('pol'), load: pick.load, rs: rs > 0, rl: rl !== Infinity };
   const pictureKey = JSON.stringify(picture);
   if (pictureKey !== state.pictureKey) {
-    drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
+    state.anchors = drawSchematic($('schematic'), { stage: pick.stage, pol: v('pol'), load: pick.load, rs, rl });
     $('schematic-caption').textContent = captionFor(pick.stage, v('pol'), pick.load);
     state.pictureKey = pictureKey;
   }
 
   renderWarnings($('warnings'), r);
+  annotateSchematic($('schematic'), state.anchors, r, formatSI);
   if (!r.ok) {
     state.renderGeneration++; // a pending second half of an earlier result must not fill the tables again
     const why = (r.error || err || {}).message || 'no operating point found';
@@ -249,6 +272,7 @@ function render(response, fragment, fromLink, ms, pageProblems = []) {
     for (const id of ['midband', 'op', 'smallsignal', 'estimates']) clear($(id));
     state.plots.ac.update(null);
     state.plots.noise.update(null);
+    state.plots.z.update(null);
     clear($('roots'));
     drawSPlane($('splane'), [], []);
     document.body.dataset.state = 'no-result';
@@ -314,6 +338,10 @@ function showNotice(fragment, problems, error) {
 }
 
 function setupToolbar() {
+  const opBox = $('schematic-op');
+  const showOP = () => $('schematic').classList.toggle('op-hidden', !opBox.checked);
+  opBox.addEventListener('change', showOP);
+  showOP();
   $('copy-link').addEventListener('click', async () => {
     const url = `${location.href.split('#')[0]}#${state.canonical || currentHash()}`;
     const out = $('copy-out');
@@ -341,6 +369,10 @@ function setupToolbar() {
   $('png-noise').addEventListener('click', async () => {
     const b = await state.plots.noise.png(`Noise density — ${state.canonical}`);
     if (b) download(b, 'stagewright-noise.png');
+  });
+  $('png-z').addEventListener('click', async () => {
+    const b = await state.plots.z.png(`Input and output impedance — ${state.canonical}`);
+    if (b) download(b, 'stagewright-impedance.png');
   });
   $('png-splane').addEventListener('click', () => svgToPng($('splane'), 'stagewright-poles-zeros.png'));
 }
@@ -375,7 +407,12 @@ async function main() {
   state.controls = new Controls($('pickers'), $('controls'), onEdit);
   state.plots.ac = frequencyPlot($('plot-ac'), $('readout-ac'));
   state.plots.noise = noisePlot($('plot-noise'), $('readout-noise'));
+  state.plots.z = impedancePlot($('plot-z'), $('readout-z'));
   setupToolbar();
+  startSaved({
+    box: $('saved-box'), engine: aidEngine, download, current: () => ({ result: state.result }),
+    open: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); },
+  });
   state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
   let schemaReady;
   let info;
@@ -405,6 +442,7 @@ main();
 // for the browser tests: the split fragment helper of the page
 window.stagewrightPage = {
   splitFragment,
+  formatSI,
   canonical: () => state.canonical,
   result: () => state.result,
   /** Times n evaluations of a fragment in the worker (ms each), for the benchmark test. */

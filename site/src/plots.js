@@ -8,6 +8,8 @@ export const COLOURS = {
   phase: '#b5561b', // phase, degrees
   noiseOut: '#6a3d9a',
   noiseIn: '#1b7f5b',
+  zin: '#8a4b0f', // input impedance
+  zout: '#2c6e8f', // output impedance
   marker: '#555b66',
   grid: '#e3e6ea',
   axis: '#39404d',
@@ -29,6 +31,11 @@ function axis(extra) {
 const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-6;
 // On a log axis, grid lines at decades only; the ticks still mark 2…9.
 const decadeGrid = { stroke: COLOURS.grid, width: 1, filter: (u, splits) => splits.map((v) => (isDecade(v) ? v : null)) };
+// The labels of a log axis see every split: uPlot's own thinning of a short
+// axis kept every n-th decade counted from its end, decadeLabels every n-th
+// counted from 10⁰, and where the two disagreed no label was left (seen at
+// 390 px: the noise plot's density axis had none).
+const allSplits = (u, splits) => splits;
 
 // Decade labels, thinned so they never overlap: every k-th decade where k
 // keeps about 64 CSS pixels per label.
@@ -41,7 +48,7 @@ function decadeLabels(u, splits, axisIdx, unit, digits) {
   return splits.map((v) => {
     if (v == null || !isDecade(v)) return '';
     const e = Math.round(Math.log10(v));
-    return e % every === 0 ? formatSI(v, digits) + unit : '';
+    return e % every === 0 ? formatSI(v, digits, unit) : '';
   });
 }
 
@@ -150,7 +157,7 @@ export function frequencyPlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, db: { auto: true }, deg: { auto: true } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
         axis({ scale: 'db', label: 'magnitude (dB)', size: 56, values: (u, s) => s.map((v) => `${v}`) }),
         axis({ scale: 'deg', side: 1, label: 'phase (°)', size: 56, grid: { show: false }, values: (u, s) => s.map((v) => `${v}°`) }),
       ],
@@ -220,8 +227,8 @@ export function noisePlot(box, readout) {
       cursor: { drag: { x: true, y: false }, points: { size: 7 } },
       scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
       axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid }),
-        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
+        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
       ],
       series: [
         {},
@@ -257,4 +264,51 @@ function noiseReadout(r) {
   if (!n) return '';
   const band = n.band ? `${formatSI(n.band[0], 3, 'Hz')} … ${formatSI(n.band[1], 3, 'Hz')}` : 'the band';
   return `input-referred rms over ${band}: ${formatSI(n.in_rms, 4, 'V')} · flicker corner ${n.corner == null ? '—' : formatSI(n.corner, 4, 'Hz')}`;
+}
+
+/** The input and output impedance magnitudes of result.ac (zin, zout) against frequency. */
+export function impedancePlot(box, readout) {
+  const plot = new Plot(
+    box,
+    readout,
+    {
+      legend: { show: false },
+      cursor: { drag: { x: true, y: false }, points: { size: 7 } },
+      scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
+      axes: [
+        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
+        axis({ label: 'impedance (Ω)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, 'Ω', 2) }),
+      ],
+      series: [
+        {},
+        { label: 'input', stroke: COLOURS.zin, width: 2 },
+        { label: 'output', stroke: COLOURS.zout, width: 2, dash: [6, 3] },
+      ],
+      hooks: {
+        setCursor: [
+          (u) => {
+            const i = u.cursor.idx;
+            if (i == null) {
+              readout.textContent = impedanceReadout(plot.result);
+              return;
+            }
+            readout.textContent = `at ${formatSI(u.data[0][i], 4, 'Hz')}: |Zin| ${formatSI(u.data[1][i], 4, 'Ω')}, |Zout| ${formatSI(u.data[2][i], 4, 'Ω')}`;
+          },
+        ],
+      },
+    },
+    (r) => {
+      const ac = r && r.ac;
+      if (!ac || !ac.f || ac.f.length < 2 || !ac.zin || !ac.zout) return null;
+      return [ac.f, ac.zin, ac.zout];
+    },
+  );
+  return withReadout(plot, readout, impedanceReadout);
+}
+
+function impedanceReadout(r) {
+  const ac = r && r.ac;
+  if (!ac || !ac.zin || !ac.zout || !ac.f) return '';
+  const n = ac.f.length - 1;
+  return `|Zin| ${formatSI(ac.zin[0], 4, 'Ω')} at ${formatSI(ac.f[0], 3, 'Hz')}, ${formatSI(ac.zin[n], 4, 'Ω')} at ${formatSI(ac.f[n], 3, 'Hz')} · |Zout| ${formatSI(ac.zout[0], 4, 'Ω')} falling to ${formatSI(ac.zout[n], 4, 'Ω')} — move the pointer over the plot to read values.`;
 }

@@ -148,7 +148,7 @@ export function renderMidband(box, r) {
     );
   const g = m.gain;
   parts.push(
-    card('midband gain', g === null ? '—' : `${formatSI(g, 4)} V/V`, m.gain_db === null ? '' : `${m.gain_db.toFixed(2)} dB`, hand.gain == null ? '—' : `${formatSI(hand.gain, 4)} V/V`, diff.gain, formula.gain, 'card-gain'),
+    card('midband gain', g === null ? '—' : formatSI(g, 4, 'V/V'), m.gain_db === null ? '' : `${m.gain_db.toFixed(2)} dB`, hand.gain == null ? '—' : formatSI(hand.gain, 4, 'V/V'), diff.gain, formula.gain, 'card-gain'),
   );
   parts.push(card('input resistance', ohms(m.rin), '', ohms(hand.rin), diff.rin, formula.rin, 'card-rin'));
   parts.push(card('output resistance', ohms(m.rout), '', ohms(hand.rout), diff.rout, formula.rout, 'card-rout'));
@@ -158,7 +158,7 @@ export function renderMidband(box, r) {
       h(
         'p',
         { class: 'note square' },
-        `Square-law hand model at the same ID: overdrive ${num(sq.vov, 'V')}, gm ${num(sq.gm, 'S')}, gain ${sq.gain == null ? '—' : formatSI(sq.gain, 4) + ' V/V'}.`,
+        `Square-law hand model at the same ID: overdrive ${num(sq.vov, 'V')}, gm ${num(sq.gm, 'S')}, gain ${sq.gain == null ? '—' : formatSI(sq.gain, 4, 'V/V')}.`,
       ),
     );
   }
@@ -192,7 +192,8 @@ export function renderEstimates(box, r) {
           h(
             'tr',
             {},
-            h('th', { scope: 'row' }, EST_NAMES[k] || k.replace(/_/g, ' '), est[k].formula ? h('div', { class: 'formula', text: est[k].formula }) : null),
+            h('th', { scope: 'row' }, EST_NAMES[k] || k.replace(/_/g, ' '), est[k].formula ? h('div', { class: 'formula', text: est[k].formula }) : null,
+              est[k].caveat ? h('div', { class: 'caveat', 'data-estimate': k, text: est[k].caveat }) : null),
             h('td', { class: 'num', text: num(est[k].value, 'Hz') }),
             h('td', { class: 'num', text: num(est[k].exact, 'Hz') }),
             h('td', { class: 'num', text: pct(est[k].diff_pct) }),

@@ -18,9 +18,12 @@ function el(name, attrs, parent) {
 /**
  * Draws the stage into `svg` (an <svg> element), replacing what was there.
  * opts: {stage: 'cs'|'cg'|'sf', pol: 'n'|'p', load: 'r'|'active'|'diode', rs: Ω, rl: Ω or Infinity}
+ * Returns where the operating point goes (see annotateSchematic), in the
+ * picture's own coordinates: {nodes: {name: [x, y, anchor]}, current: [x, y] (text ending there), devices: {M1: [x, y], M2: [x, y]}}.
  */
 export function drawSchematic(svg, opts) {
   while (svg.firstChild) svg.removeChild(svg.firstChild);
+  const anchors = { nodes: {}, current: null, devices: {} };
   const pol = opts.pol === 'p' ? 'p' : 'n';
   const other = pol === 'n' ? 'p' : 'n';
   const Y = (y) => (pol === 'n' ? y : H - y);
@@ -113,6 +116,7 @@ export function drawSchematic(svg, opts) {
     nameText.textContent = name;
     const typeText = el('text', { x: tx + 8, y: Y(y) + 14, class: 'lbl small' }, g);
     typeText.textContent = `${type}-type`;
+    anchors.devices[name] = [tx + 8, Y(y) + 26];
     return { gateX: gateFrom, top: y - 30, bottom: y + 30, x: tx };
   };
 
@@ -136,6 +140,7 @@ export function drawSchematic(svg, opts) {
     wireReal([[col, yr], [250, yr]]);
     const t = el('text', { x: 252, y: yr - 8, class: 'lbl node' }, g);
     t.textContent = 'out';
+    anchors.nodes.out = [252, yr - 22, 'start'];
     el('circle', { cx: 250, cy: yr, r: 3, class: 'node-mark' }, g);
     capacitorDown(222, yr, 'CL');
     if (Number.isFinite(opts.rl)) {
@@ -160,6 +165,7 @@ export function drawSchematic(svg, opts) {
     // placed in real coordinates so it stays clear of the wires when mirrored
     const t = el('text', side === 'right' ? { x: x + 8, y: Y(y) + 5, class: 'lbl node' } : { x: x + 2, y: Y(y) - 8, class: 'lbl node', 'text-anchor': 'middle' }, g);
     t.textContent = 'in';
+    anchors.nodes.in = side === 'right' ? [x + 26, Y(y) + 5, 'start'] : [x + 2, Y(y) + 20, 'middle'];
   };
   const loadDevice = (yTopTerm, yBotTerm, sourceAtTop) => {
     // load / sink device of the given type between two terminals (n-coordinates)
@@ -186,19 +192,26 @@ export function drawSchematic(svg, opts) {
       } else {
         label(col - 64, yG, 'VB', 'lbl', 'end');
         dot(col - 60, yG);
+        anchors.nodes.bias = [col - 64, Y(yG) + 18, 'end'];
       }
     }
     outputLoad(yOut);
+    anchors.current = [col - 6, Y(131) + 4];
     const m1 = mosfet(col - 14, 176, pol, 'bottom', 'M1', col - 76);
     wire([[col, yOut], [col, m1.top]]);
     if (stage === 'cs') {
       inputNode(col - 76, 176);
       signalSource(col - 76, 176, 'vsig');
-      if (opts.rs > 0) resistorV(col, m1.bottom, botRail, 'RS');
+      if (opts.rs > 0) {
+        resistorV(col, m1.bottom, botRail, 'RS');
+        dot(col, m1.bottom);
+        anchors.nodes.src = [col - 6, Y(m1.bottom) + 4, 'end'];
+      }
       else wire([[col, m1.bottom], [col, botRail]]);
     } else {
       label(col - 80, 176, 'VG', 'lbl', 'end');
       dot(col - 76, 176);
+      anchors.nodes.gate = [col - 80, Y(176) + 18, 'end'];
       const yIn = 226;
       wire([[col, m1.bottom], [col, yIn]]);
       inputNode(col, yIn, 'right');
@@ -220,6 +233,7 @@ export function drawSchematic(svg, opts) {
     const yOut = 128;
     wire([[col, m1.bottom], [col, yOut]]);
     outputLoad(yOut);
+    anchors.current = [col - 6, Y(117) + 4];
     if (load === 'r') {
       resistorV(col, yOut, botRail, 'RS');
     } else {
@@ -227,7 +241,56 @@ export function drawSchematic(svg, opts) {
       const yG = (yOut + 8 + botRail) / 2;
       label(col - 64, yG, 'VB', 'lbl', 'end');
       dot(col - 60, yG);
+      anchors.nodes.bias = [col - 64, Y(yG) + 18, 'end'];
     }
+  }
+  return anchors;
+}
+
+const REGION_WORDS = { saturation: 'saturation', triode: 'triode', subthreshold: 'subthreshold', cutoff: 'cut off' };
+
+/**
+ * Writes the operating point on the drawn schematic: each node's DC voltage
+ * beside it, M1's drain current on its branch (it flows from VDD, drawn at
+ * the top, towards 0 V) and each transistor's region under its name. Only
+ * text that changed is written, so a slider step costs a few text nodes.
+ * fmt(value, digits, unit) formats a number; r is the result (null: none).
+ */
+export function annotateSchematic(svg, anchors, r, fmt) {
+  let g = svg.querySelector('g.sch-op');
+  if (!g) {
+    g = el('g', { class: 'sch-op', 'aria-hidden': 'true' }, svg);
+    g.texts = new Map();
+  }
+  const want = new Map();
+  if (r && r.ok && anchors) {
+    const nodes = r.nodes || {};
+    for (const [name, [x, y, anchor]] of Object.entries(anchors.nodes)) {
+      if (typeof nodes[name] === 'number') want.set(`node-${name}`, { x, y, anchor, cls: 'op-v', text: fmt(nodes[name], 3, 'V') });
+    }
+    if (anchors.current && r.op && typeof r.op.id === 'number') {
+      want.set('current', { x: anchors.current[0], y: anchors.current[1], anchor: 'end', cls: 'op-i', text: `↓ ${fmt(Math.abs(r.op.id), 3, 'A')}` });
+    }
+    for (const [dev, op] of [['M1', r.op], ['M2', r.load_op]]) {
+      const at = anchors.devices[dev];
+      if (at && op && op.region) want.set(`region-${dev}`, { x: at[0], y: at[1], anchor: 'start', cls: `op-region region-${op.region}`, text: REGION_WORDS[op.region] || op.region });
+    }
+  }
+  for (const [id, t] of g.texts) {
+    if (!want.has(id)) {
+      t.remove();
+      g.texts.delete(id);
+    }
+  }
+  for (const [id, w] of want) {
+    let t = g.texts.get(id);
+    if (!t) {
+      t = el('text', { 'data-op': id }, g);
+      g.texts.set(id, t);
+    }
+    const attrs = { x: w.x, y: w.y, 'text-anchor': w.anchor, class: `lbl ${w.cls}` };
+    for (const [k, v] of Object.entries(attrs)) if (t.getAttribute(k) !== String(v)) t.setAttribute(k, String(v));
+    if (t.textContent !== w.text) t.textContent = w.text;
   }
 }
 

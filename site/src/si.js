@@ -1,9 +1,10 @@
 // SI numbers as users type them and as the fragment carries them.
 // parseSI("4.7k") === 4700; formatSI(4700, 4) === "4.700k".
 
-const PREFIX = { f: -15, p: -12, n: -9, u: -6, 'µ': -6, 'μ': -6, m: -3, k: 3, M: 6, G: 9, T: 12 };
+// K is no SI prefix, but people type 20K for 20 k (as the core's units.Parse reads it).
+const PREFIX = { f: -15, p: -12, n: -9, u: -6, 'µ': -6, 'μ': -6, m: -3, k: 3, K: 3, M: 6, G: 9, T: 12 };
 const ORDER = [['f', -15], ['p', -12], ['n', -9], ['u', -6], ['m', -3], ['', 0], ['k', 3], ['M', 6], ['G', 9], ['T', 12]];
-const NUMBER = /^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*([fpnuµμmkMGT]?)$/;
+const NUMBER = /^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*([fpnuµμmkKMGT]?)$/;
 
 /**
  * Parses a number with an optional SI prefix (f p n u µ m k M G T) and an
@@ -17,6 +18,7 @@ export function parseSI(text, unit = '') {
   if (unit && s.endsWith(unit)) s = s.slice(0, -unit.length).trim();
   if (s.length > 64) return { error: 'too long: at most 64 characters' };
   const m = NUMBER.exec(s);
+  if (!m && /^[+-]?[\d.]+\s*meg(a)?$/i.test(s)) return { error: `“${short(text)}”: write M for mega` };
   if (!m) return { error: `“${short(text)}” is not a number; write e.g. 4.7k, 180n, 2.2p or 1e-6` };
   if (m[2] && /e/i.test(m[1])) return { error: `“${short(text)}”: write an exponent or a prefix, not both` };
   // Move the decimal point in the text so the value is rounded once, as
@@ -51,6 +53,8 @@ export function formatSI(v, digits = 4, unit = '') {
   if (v === null || v === undefined || Number.isNaN(v)) return '—';
   if (v === Infinity) return '∞';
   if (v === -Infinity) return '−∞';
+  // A gain is a plain ratio: 0.8418 V/V, never 841.8 mV/V.
+  if (unit === 'V/V') return `${Number(v.toPrecision(digits)).toString().replace('-', '−')}\u2009V/V`;
   const [p, e] = prefixFor(v);
   let m = v / 10 ** e;
   let text = Number(m.toPrecision(digits)).toString();

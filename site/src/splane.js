@@ -37,7 +37,30 @@ export function drawSPlane(svg, poles, zeros) {
     const e = el('text', { x, y, class: 'lbl small', 'text-anchor': anchor }, g);
     e.textContent = s;
   };
-  lab(W - 10, cy + 18, 'σ/2π', 'end');
+  // Decade ticks on both axes, labelled where there is room (the scale is
+  // logarithmic, so a tick's position says little without its value).
+  const tick = (v, horizontal, last) => {
+    const x = horizontal ? sx(v) : cx;
+    const y = horizontal ? cy : sy(v);
+    if (horizontal) el('line', { x1: x, y1: cy - 3, x2: x, y2: cy + 3, class: 'ax' }, g);
+    else el('line', { x1: cx - 3, y1: y, x2: cx + 3, y2: y, class: 'ax' }, g);
+    const room = horizontal ? Math.abs(x - last) >= 46 : Math.abs(y - last) >= 14;
+    if (!room) return last;
+    const text = `${v < 0 ? '−' : ''}${formatSI(Math.abs(v), 1, 'Hz').replace('\u2009', '')}`;
+    if (horizontal) lab(x, cy + 12, text, 'middle');
+    else lab(cx - 5, y + 3, text, 'end');
+    return horizontal ? x : y;
+  };
+  for (const sign of [1, -1]) {
+    let lastX = cx;
+    let lastY = cy;
+    for (let k = Math.ceil(Math.log10(f0 * 10)); t(10 ** k) <= span * 0.97 && k < 40; k++) {
+      const v = sign * 10 ** k;
+      lastX = tick(v, true, lastX);
+      lastY = tick(v, false, lastY);
+    }
+  }
+  lab(W - 10, cy + 24, 'σ/2π', 'end');
   lab(cx + 6, 18, 'jω/2π', 'start');
   lab(10, H - 8, '← stable (left half)', 'start');
   for (const p of poles) {

@@ -84,3 +84,14 @@ test('page sources never turn text into markup or code', async () => {
     for (const b of banned) assert.ok(!text.includes(b), `${f.pathname} uses ${b}`);
   }
 });
+
+test('parseSI reads K as kilo and tells meg to be M, as the core does', () => {
+  assert.equal(parseSI('20K').value, 20e3);
+  assert.match(parseSI('1meg').error, /write M for mega/);
+  assert.match(parseSI('1Meg').error, /write M for mega/);
+});
+
+test('a gain is written as a plain ratio, never with a prefix', () => {
+  assert.equal(formatSI(0.8418, 4, 'V/V'), '0.8418\u2009V/V');
+  assert.equal(formatSI(-7.0958, 4, 'V/V'), '−7.096\u2009V/V');
+});

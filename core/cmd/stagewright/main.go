@@ -87,9 +87,16 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 }
 
 // status is the exit status of one result: a fragment with problems or a
-// design with no operating point is a design error.
+// design with no operating point is a design error. It also sets the
+// result's ok to false for a fragment with problems, so that the JSON says
+// what the exit status says (the page shows such a result with the bad keys
+// at their defaults; a script that reads ok must not take it for the design
+// it asked for).
 func status(r *design.Result) int {
-	if !r.OK || len(r.Problems) > 0 {
+	if len(r.Problems) > 0 {
+		r.OK = false
+	}
+	if !r.OK {
 		return 1
 	}
 	return 0
@@ -98,8 +105,9 @@ func status(r *design.Result) int {
 func evalOne(fragment string, stdout, stderr io.Writer) int {
 	var e design.Evaluator
 	r := e.EvaluateFragment(fragment)
+	st := status(&r)
 	stdout.Write(append(r.JSON(), '\n'))
-	if st := status(&r); st != 0 {
+	if st != 0 {
 		fmt.Fprintln(stderr, "stagewright:", oneLine(&r))
 		return st
 	}
@@ -120,8 +128,9 @@ func evalLines(stdin io.Reader, stdout, stderr io.Writer) int {
 			continue
 		}
 		r := e.EvaluateFragment(text)
+		st := status(&r)
 		w.Write(append(r.JSON(), '\n'))
-		if st := status(&r); st != 0 {
+		if st != 0 {
 			fmt.Fprintf(stderr, "stagewright: line %d: %s\n", line, oneLine(&r))
 			worst = st
 		}

@@ -101,3 +101,46 @@ func TestUsage(t *testing.T) {
 		t.Errorf("keys: exit %d", code)
 	}
 }
+
+// The JSON says what the exit status says: a fragment with a rejected key
+// exits 1 and its result has ok false (the figures, computed with the bad
+// key at its default, are still there); a clean one exits 0 with ok true.
+// K is read as kilo; meg is told to be M.
+func TestEvalOKMatchesExit(t *testing.T) {
+	for _, tc := range []struct {
+		frag   string
+		code   int
+		ok     bool
+		stderr string
+	}{
+		{"v=1&stage=cs&rd=12K", 0, true, ""},
+		{"v=1&stage=cs&rd=5x", 1, false, "rd=5x"},
+		{"v=1&stage=cs&rd=1meg", 1, false, "write M for mega"},
+		{"v=1&stage=cs&wdith=10u", 1, false, "wdith"},
+	} {
+		code, out, errs := runCLI([]string{"eval", tc.frag}, "")
+		var r struct {
+			OK      bool                     `json:"ok"`
+			Design  string                   `json:"design"`
+			Midband *struct{ Gain *float64 } `json:"midband"`
+		}
+		if err := json.Unmarshal([]byte(out), &r); err != nil {
+			t.Fatalf("%s: not JSON: %v", tc.frag, err)
+		}
+		if code != tc.code || r.OK != tc.ok || !strings.Contains(errs, tc.stderr) {
+			t.Errorf("%s: exit %d, ok %v, stderr %q; want exit %d, ok %v, stderr with %q", tc.frag, code, r.OK, errs, tc.code, tc.ok, tc.stderr)
+		}
+		if r.Midband == nil || r.Midband.Gain == nil {
+			t.Errorf("%s: the figures are gone", tc.frag)
+		}
+	}
+	// and line by line
+	_, out, _ := runCLI([]string{"eval", "-"}, "v=1&stage=cs\nv=1&stage=cs&rd=5x\n")
+	lines := strings.Split(strings.TrimSpace(out), "\n")
+	if len(lines) != 2 || !strings.HasPrefix(lines[0], `{"ok":true`) || !strings.HasPrefix(lines[1], `{"ok":false`) {
+		t.Errorf("eval -: %q; want ok true then ok false", lines)
+	}
+	if _, out, _ := runCLI([]string{"eval", "v=1&stage=cs&rd=12K"}, ""); !strings.Contains(out, "&rd=12k&") {
+		t.Errorf("12K did not read as 12k: %.300s", out)
+	}
+}

@@ -4,7 +4,9 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
+	"strings"
 
 	"stagewright/core/design"
 	"stagewright/core/sweep"
@@ -77,21 +79,59 @@ func cmdSweep(args []string, _ io.Reader, stdout, stderr io.Writer) int {
 		writeJSON(stdout, res)
 		return 0
 	}
-	w := csv.NewWriter(stdout)
-	head := []string{res.Key}
-	for _, s := range res.Series {
-		head = append(head, s.Name)
+	writeSweepCSV(stdout, &res)
+	return 0
+}
+
+// writeSweepCSV writes one row per point: the swept input, each figure and,
+// last, the reason a point has no result (empty where it has one). A figure
+// that is the swept input itself (id in bias id) is not written twice; one
+// of the same name that differs from it is headed "NAME (figure)".
+func writeSweepCSV(out io.Writer, res *sweep.Result) {
+	reasons := make(map[string]string, len(res.Failures))
+	for _, f := range res.Failures {
+		if at, why, ok := strings.Cut(f, ": "); ok {
+			reasons[at] = why
+		}
 	}
-	w.Write(head)
+	head := []string{res.Key}
+	var series []sweep.Series
+	for _, s := range res.Series {
+		name := s.Name
+		if name == res.Key {
+			if sameValues(res.Values, s.Values) {
+				continue
+			}
+			name += " (figure)"
+		}
+		head = append(head, name)
+		series = append(series, s)
+	}
+	w := csv.NewWriter(out)
+	w.Write(append(head, "error"))
 	for i, v := range res.Values {
 		row := []string{num(design.Num(v))}
-		for _, s := range res.Series {
+		for _, s := range series {
 			row = append(row, num(design.Num(s.Values[i])))
 		}
-		w.Write(row)
+		w.Write(append(row, reasons[res.Key+"="+units.Exact(v)]))
 	}
 	w.Flush()
-	return 0
+}
+
+// sameValues reports whether a figure equals the swept input wherever it
+// has a value, to 1e-9 relative (the bias servo holds it to far less).
+func sameValues(in, fig design.Floats) bool {
+	for i, v := range in {
+		f := fig[i]
+		if math.IsNaN(f) {
+			continue
+		}
+		if math.Abs(f-v) > 1e-9*math.Abs(v) {
+			return false
+		}
+	}
+	return true
 }
 
 func cmdCompare(args []string, _ io.Reader, stdout, stderr io.Writer) int {

@@ -124,8 +124,8 @@ export class Chart {
       cursor: { drag: { x: false, y: false }, points: { size: 6 } },
       scales: { x: { time: false, distr: s.xLog ? 3 : 1 }, y: { distr: s.yLog ? 3 : 1, ...(s.bars ? { range: (u, lo, hi) => [0, Math.max(1, hi * 1.08)] } : {}) } },
       axes: [
-        axis({ label: s.xLabel, size: 34, space: s.xSpace || 50, values: s.xLog ? decadeValues(s.xUnit || '') : siValues(s.xUnit || '', s.xDigits), ...(s.xLog ? { grid: decadeGrid } : {}) }),
-        axis({ label: s.yLabel, size: 58, values: s.yLog ? decadeValues(s.yUnit || '') : siValues(s.yUnit || ''), ...(s.yLog ? { grid: decadeGrid } : {}) }),
+        axis({ label: s.xLabel, size: 34, space: s.xSpace || 50, values: s.xLog ? decadeValues(s.xUnit || '') : siValues(s.xUnit || '', s.xDigits), ...(s.xLog ? { grid: decadeGrid, filter: (u, splits) => splits } : {}) }),
+        axis({ label: s.yLabel, size: 58, values: s.yLog ? decadeValues(s.yUnit || '') : siValues(s.yUnit || ''), ...(s.yLog ? { grid: decadeGrid, filter: (u, splits) => splits } : {}) }),
       ],
       series: [
         {},

@@ -22,7 +22,10 @@ export function monteCarloPanel(ctx) {
   const controls = h('div', { class: 'aid-controls' }, samples.wrap, seed.wrap, runBtn, cancelBtn, bar, progressText);
   const yieldLine = h('p', { class: 'aid-yield', id: 'mc-yield' });
   const stats = h('div', { id: 'mc-stats' });
-  const hists = h('div', { class: 'aid-four' });
+  // Before the first run the histograms are hidden and one line says what
+  // Run will do (empty chart frames said nothing).
+  const hists = h('div', { class: 'aid-four', id: 'mc-hists', hidden: true });
+  const before = h('p', { class: 'aid-note', id: 'mc-before' });
   const charts = QUANTITIES.map((q) => {
     const box = h('div', { class: 'plot aid-small', id: `mc-hist-${q.key}`, role: 'img', 'aria-label': `histogram of ${q.label}` });
     hists.appendChild(h('figure', { class: 'aid-figure' }, h('figcaption', { text: `${q.label} (${q.unit})` }), h('p', { class: 'aid-note aid-held-note', text: 'held by the bias: no spread beyond rounding' }), box));
@@ -32,11 +35,13 @@ export function monteCarloPanel(ctx) {
   p.body.append(
     controls,
     h('p', { class: 'aid-note', text: 'Global process shift and device mismatch (Pelgrom) of the demo process; runs only when you press Run. The yield counts the targets set under “Size to a spec”.' }),
-    yieldLine, stats, hists, msg,
+    before, yieldLine, stats, hists, msg,
   );
   const job = new Job(ctx.engine, 'montecarloStart');
 
   function showResult(r, ms) {
+    before.hidden = true;
+    hists.hidden = false;
     const y = r.yield;
     clear(yieldLine);
     if (r.covered && r.covered.length) {
@@ -105,6 +110,7 @@ export function monteCarloPanel(ctx) {
     show(values) {
       showField(samples.input, values('mc'));
       showField(seed.input, values('seed'));
+      before.textContent = `Run draws ${values('mc')} samples of the present design (seed ${values('seed')}) and shows the mean, spread and histogram of the gain, f3db, ID and output level, with the yield against the targets.`;
     },
     async refresh() {},
   };

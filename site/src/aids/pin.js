@@ -68,7 +68,9 @@ export function pinPanel(ctx) {
     let fresh = false;
     if (hooked !== u) {
       u.hooks.draw = u.hooks.draw || [];
-      u.hooks.draw.push(drawPinned);
+      // The hooks may be the plot options' own arrays, shared by every
+      // instance the plot makes: the hook goes in once.
+      if (!u.hooks.draw.includes(drawPinned)) u.hooks.draw.push(drawPinned);
       hooked = u;
       fresh = Boolean(pinned && pinned.ac);
     }

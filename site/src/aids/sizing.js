@@ -12,6 +12,15 @@ const TARGETS = [
 ];
 const VARS = [['w', 'width', 'm'], ['l', 'length', 'm'], ['id', 'drain current', 'A'], ['rd', 'drain resistor', 'Ω'], ['rs', 'source resistor', 'Ω'], ['vin', 'input level', 'V']];
 
+/**
+ * The sentence of an infeasible search: the core's message already begins
+ * with "no design meets every target", which is not said twice.
+ */
+export function noTargetMet(message) {
+  const rest = String(message || '').replace(/^no design meets every target[;:,.]?\s*/i, '');
+  return rest ? `No design meets every target: ${rest}` : 'No design meets every target.';
+}
+
 export function sizingPanel(ctx) {
   const p = panel('aid-size', 'Size to a spec');
   const targetBox = h('fieldset', { class: 'aid-set' }, h('legend', { text: 'Targets (empty or 0: none)' }));
@@ -56,7 +65,7 @@ export function sizingPanel(ctx) {
     found = s.fragment || null;
     applyBtn.disabled = !found;
     const cls = s.feasible ? 'aid-good' : 'aid-bad';
-    verdict.append(h('p', { class: `aid-verdict ${cls}`, id: 'size-message', text: s.feasible ? `Found a design that meets every target (${s.evaluations} evaluations, ${(ms / 1000).toFixed(2)} s).` : `No design meets every target: ${s.message}` }));
+    verdict.append(h('p', { class: `aid-verdict ${cls}`, id: 'size-message', text: s.feasible ? `Found a design that meets every target (${s.evaluations} evaluations, ${(ms / 1000).toFixed(2)} s).` : noTargetMet(s.message) }));
     if (!s.feasible && s.conflicts && s.conflicts.length) {
       verdict.append(h('p', { class: 'aid-note', id: 'size-conflicts', text: `Targets that traded against each other during the search: ${s.conflicts.map((c) => `${c.pair[0]} and ${c.pair[1]}`).join('; ')}.` }));
     }

@@ -2,6 +2,7 @@
 // the present design marked.
 import { panel, note, numberField, showField, h, clear, Chart, markPoint, callAid, num } from './common.js';
 import { exactSI } from '../si.js';
+import { download, figureSweepCSV } from '../export.js';
 
 const FIGURES = [
   ['gain', 'gain', 'V/V'], ['f3db', 'f3db', 'Hz'], ['ugf', 'unity-gain frequency', 'Hz'], ['gbw', 'gain–bandwidth', 'Hz'],
@@ -21,6 +22,11 @@ export function sweepPanel(ctx) {
     h('label', { class: 'aid-field', for: 'sweep-key' }, h('span', { class: 'aid-label', text: 'input' }), keySel),
     h('label', { class: 'aid-field', for: 'sweep-figure' }, h('span', { class: 'aid-label', text: 'figure' }), figSel),
     lo.wrap, hi.wrap, n.wrap);
+  const csvBtn = h('button', { type: 'button', class: 'small', id: 'sweep-csv', text: 'Sweep table as CSV', disabled: true });
+  csvBtn.addEventListener('click', () => {
+    if (last) download(new Blob([figureSweepCSV(last, ctx.canonical())], { type: 'text/csv' }), `stagewright-sweep-${last.key}.csv`);
+  });
+  p.head.appendChild(csvBtn);
   const box = h('div', { class: 'plot aid-plot', id: 'plot-sweep', role: 'img', 'aria-label': 'a figure against the swept input' });
   const readout = h('p', { class: 'readout', id: 'sweep-readout' });
   const msg = note();
@@ -80,10 +86,12 @@ export function sweepPanel(ctx) {
         const { result } = await callAid(ctx.engine, 'sweep', fragment);
         if (!still()) return;
         last = result;
+        csvBtn.disabled = false;
         draw();
       } catch (err) {
         if (!still()) return;
         last = null;
+        csvBtn.disabled = true;
         if (chart) chart.update(null);
         readout.textContent = '';
         msg.textContent = `No sweep: ${err.message}`;
