@@ -216,6 +216,22 @@ function defaultReadout(r) {
   return parts.join(' · ') + ' — move the pointer over the plot to read values.';
 }
 
+/**
+ * The frame shared by the log–log plots against frequency: no legend, a
+ * horizontal zoom, decade grids and labels on both axes.
+ */
+function logLogFrame(yLabel, yUnit) {
+  return {
+    legend: { show: false },
+    cursor: { drag: { x: true, y: false }, points: { size: 7 } },
+    scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
+    axes: [
+      axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
+      axis({ label: yLabel, size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, yUnit, 2) }),
+    ],
+  };
+}
+
 /** The output and input-referred noise density plot of result.noise. */
 export function noisePlot(box, readout) {
   let markers = [];
@@ -223,13 +239,7 @@ export function noisePlot(box, readout) {
     box,
     readout,
     {
-      legend: { show: false },
-      cursor: { drag: { x: true, y: false }, points: { size: 7 } },
-      scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
-      axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
-        axis({ label: 'density (V/√Hz)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, '', 2) }),
-      ],
+      ...logLogFrame('density (V/√Hz)', ''),
       series: [
         {},
         { label: 'output', stroke: COLOURS.noiseOut, width: 2 },
@@ -272,13 +282,7 @@ export function impedancePlot(box, readout) {
     box,
     readout,
     {
-      legend: { show: false },
-      cursor: { drag: { x: true, y: false }, points: { size: 7 } },
-      scales: { x: { time: false, distr: 3 }, y: { distr: 3 } },
-      axes: [
-        axis({ values: hzValues, label: 'frequency', size: 40, grid: decadeGrid, filter: allSplits }),
-        axis({ label: 'impedance (Ω)', size: 64, grid: decadeGrid, filter: allSplits, values: (u, s, i) => decadeLabels(u, s, i, 'Ω', 2) }),
-      ],
+      ...logLogFrame('impedance (Ω)', 'Ω'),
       series: [
         {},
         { label: 'input', stroke: COLOURS.zin, width: 2 },
