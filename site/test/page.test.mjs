@@ -79,7 +79,9 @@ test('a slider step patches the result tables in place and writes the link once 
   await page.locator('#k-rd-slider').focus();
   const n0 = await evaluations();
   await page.keyboard.press('ArrowRight');
-  await page.waitForFunction((n) => Number(document.body.dataset.evaluations) > n && document.body.dataset.busy !== 'true', n0);
+  // The tables are filled in a task after the plots' frame; data-state is
+  // 'ready' once they are.
+  await page.waitForFunction((n) => Number(document.body.dataset.evaluations) > n && document.body.dataset.busy !== 'true' && document.body.dataset.state === 'ready', n0);
   const after = await page.evaluate(() => ({
     kept: ['#op table', '#smallsignal table', '#card-gain', '#estimates table', '#roots li'].filter((sel) => document.querySelector(sel).swKept === sel),
     op: document.querySelector('#op table').textContent,
