@@ -39,8 +39,10 @@ fuzz:
 mutants:
 	$(GO) run ./tools/mutants
 
-# The full random-design run (100,000 designs); make test runs 10,000.
+# The full random-design runs: 100,000 designs (make test runs 10,000), and
+# 1,000,000 stages biased by their input level (make test runs 20,000).
 random-full:
+	STAGEWRIGHT_RANDOM_VIN=1000000 $(GO) test -count=1 -timeout 30m -run '^TestRandomInputLevelStages$$' -v ./core/stage
 	STAGEWRIGHT_RANDOM_FULL=1 $(GO) test -count=1 -timeout 30m -run '^TestRandomDesignsFull$$' -v ./core/design
 
 include web.mk
