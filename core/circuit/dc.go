@@ -19,6 +19,9 @@ type Options struct {
 	VoltTol  float64 // voltage change that counts as settled, V (1e-9)
 	NoGMin   bool    // skip gmin stepping (tests)
 	NoSource bool    // skip source stepping (tests)
+	// NoBracket skips the bracketed solve that follows when every Newton
+	// method has failed (tests).
+	NoBracket bool
 }
 
 func (o Options) withDefaults() Options {
@@ -49,21 +52,30 @@ type OperatingPoint struct {
 	Branch     []float64 // voltage-source branch currents, A, flowing P → source → N
 	Source     []float64 // voltage-source values as solved (servo'd sources carry their solved value)
 	Iterations int       // Newton iterations, all continuation steps included
-	Method     string    // "newton", "gmin stepping" or "source stepping"
+	Method     string    // "newton", "gmin stepping", "source stepping" or "bracketed"
 }
 
-// NoConvergenceError says that no DC solution was found and where the
-// solver was stuck.
+// NoConvergenceError says that the solver found no DC solution and where
+// it was stuck. It is a failure of the solver, not a proof that the
+// circuit has no solution.
 type NoConvergenceError struct {
 	Iterations int
 	Node       string  // node (or equation) with the largest residual at the end
 	Residual   float64 // that residual, A (V for a source or voltage-servo equation)
 	Reason     string
+	// Bracketed says whether the bracketed solve applied to the circuit
+	// (and failed); when false the circuit is outside its reach (servos, or
+	// a structure it cannot order).
+	Bracketed bool
 }
 
 func (e *NoConvergenceError) Error() string {
-	return fmt.Sprintf("Newton–Raphson found no operating point after %d iterations (plain, gmin stepping and source stepping): %s; largest residual %.3g at %s",
-		e.Iterations, e.Reason, e.Residual, e.Node)
+	methods := "plain, gmin stepping and source stepping"
+	if e.Bracketed {
+		methods += ", then the bracketed solve"
+	}
+	return fmt.Sprintf("the solver found no operating point after %d Newton–Raphson iterations (%s): %s; largest residual %.3g at %s",
+		e.Iterations, methods, e.Reason, e.Residual, e.Node)
 }
 
 // dcSystem holds the workspace of one DC solve.
@@ -83,7 +95,8 @@ type dcSystem struct {
 	scale   float64
 	evals   []device.Eval // each transistor's current and derivatives at the present iterate
 	start   []float64     // the initial iterate
-	buf     []float64     // storage of x, dx, f, fabs, start and j
+	kcl     []float64     // kclCheck's workspace: imbalance, largest current and rounding scale per node
+	buf     []float64     // storage of x, dx, f, fabs, start, kcl and j
 }
 
 // dcSystems keeps the workspaces of finished solves (and the storage their
@@ -100,14 +113,15 @@ func newDCSystem(c *Circuit, opt Options) *dcSystem {
 	s.ns = len(c.Servos)
 	s.n = s.nn + s.nb + s.ns
 	s.gmin, s.scale = 0, 0
-	n := s.n
-	if cap(s.buf) < 5*n+n*n {
-		s.buf = make([]float64, 5*n+n*n)
+	n, nk := s.n, 3*s.nn
+	if cap(s.buf) < 5*n+nk+n*n {
+		s.buf = make([]float64, 5*n+nk+n*n)
 	}
-	b := s.buf[:5*n+n*n]
+	b := s.buf[:5*n+nk+n*n]
 	clear(b)
 	s.x, s.dx, s.f, s.fabs, s.start = b[:n:n], b[n:2*n:2*n], b[2*n:3*n:3*n], b[3*n:4*n:4*n], b[4*n:5*n:5*n]
-	s.j = b[5*n:]
+	s.kcl = b[5*n : 5*n+nk : 5*n+nk]
+	s.j = b[5*n+nk:]
 	if cap(s.evals) < len(c.FETs) {
 		s.evals = make([]device.Eval, len(c.FETs))
 	}
@@ -360,7 +374,9 @@ func (s *dcSystem) newton(maxIter int) (int, bool) {
 type Guess map[Node]float64
 
 // SolveDC finds the DC operating point. It tries plain Newton–Raphson from
-// the guess, then gmin stepping, then source stepping.
+// the guess, then gmin stepping, then source stepping, and when all three
+// fail, the bracketed solve (bracket.go) where the circuit allows it. A
+// result from any of them has passed the KCL check (kcl.go).
 func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 	if err := c.Check(); err != nil {
 		return OperatingPoint{}, err
@@ -401,7 +417,7 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 	s.gmin, s.scale = opt.GMin, 1
 	it, ok := s.newton(opt.MaxIter)
 	total += it
-	if ok {
+	if ok && s.checked() {
 		return done("newton")
 	}
 
@@ -422,7 +438,7 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 			s.gmin = opt.GMin
 			it, ok = s.newton(opt.MaxIter)
 			total += it
-			if ok {
+			if ok && s.checked() {
 				return done("gmin stepping")
 			}
 		}
@@ -450,8 +466,22 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 				step /= 2
 			}
 		}
-		if scale >= 1 {
+		if scale >= 1 && s.checked() {
 			return done("source stepping")
+		}
+	}
+
+	// 4. The bracketed solve, for the circuits where it cannot miss.
+	tried := false
+	if !opt.NoBracket {
+		if _, ok := s.planBracketed(); ok {
+			tried = true
+			if _, ok := s.bracketed(); ok {
+				s.assemble()
+				if ok, _, _, _ := s.kclCheck(true); ok {
+					return done("bracketed")
+				}
+			}
 		}
 	}
 
@@ -463,7 +493,15 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 		Node:       s.rowName(worst),
 		Residual:   math.Abs(s.f[worst]),
 		Reason:     "every method failed",
+		Bracketed:  tried,
 	}
+}
+
+// checked applies the KCL check to a Newton result (s.evals is fresh: the
+// last iteration assembled at s.x and stopped).
+func (s *dcSystem) checked() bool {
+	ok, _, _, _ := s.kclCheck(true)
+	return ok
 }
 
 func (s *dcSystem) result(iters int, method string) OperatingPoint {
