@@ -8,7 +8,7 @@ import (
 )
 
 // Stable error codes the page can branch on. Codes from the evaluation
-// itself (fragment, no_operating_point, bias, internal) pass through as the
+// itself (fragment, no_operating_point, bias, solver_failed, internal) pass through as the
 // core reports them; the bridge adds "request" for calls it cannot serve.
 const (
 	CodeRequest  = "request"  // the call itself is malformed (wrong argument count or type, too large)

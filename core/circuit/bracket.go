@@ -50,14 +50,13 @@ const maxRootEvals = 200
 type bracketPlan struct {
 	alone  []int // free node rows solved one at a time, in order
 	nested []int // the coupled free rows, outermost first
-	lo, hi float64
 }
 
 // planBracketed says whether the bracketed solve applies to s's circuit
-// and in which order it takes the nodes. It sets the fixed nodes in s.x.
+// and in which order it takes the nodes.
 func (s *dcSystem) planBracketed() (bracketPlan, bool) {
 	var p bracketPlan
-	if s.ns > 0 || len(s.c.ISources) > 0 {
+	if len(s.c.ISources) > 0 || s.ns > maxServos {
 		return p, false
 	}
 	const (
@@ -72,8 +71,6 @@ func (s *dcSystem) planBracketed() (bracketPlan, bool) {
 			return p, false
 		}
 		state[k] = fixed
-		s.x[k] = vs.V
-		p.lo, p.hi = math.Min(p.lo, vs.V), math.Max(p.hi, vs.V)
 	}
 	// deps lists the free nodes other than k that node k's equation
 	// depends on.
@@ -124,7 +121,7 @@ func (s *dcSystem) planBracketed() (bracketPlan, bool) {
 			p.nested = append(p.nested, k)
 		}
 	}
-	if len(p.nested) > maxNested {
+	if len(p.nested) > maxNested || len(p.nested)+s.ns > maxLevels {
 		return p, false
 	}
 	// A transistor on a nested node must have its gate and bulk fixed,
@@ -179,7 +176,7 @@ func (s *dcSystem) nodeCurrent(k int) float64 {
 
 // bracketed runs the bracketed solve. It returns the current evaluations
 // it used and whether it found the point; on success s.x holds the node
-// voltages and the sources' branch currents.
+// voltages, the sources' branch currents and the servo values.
 func (s *dcSystem) bracketed() (int, bool) {
 	s.scale, s.gmin = 1, s.opt.GMin
 	for i := range s.x {
@@ -189,69 +186,161 @@ func (s *dcSystem) bracketed() (int, bool) {
 	if !ok {
 		return 0, false
 	}
-	evals := 0
-	ok = true
-	for _, k := range p.alone {
-		if !s.rootOf(k, p, nil, &evals) {
-			ok = false
-		}
-	}
-	if ok && len(p.nested) > 0 && !s.rootOf(p.nested[0], p, p.nested[1:], &evals) {
-		ok = false
-	}
-	if !ok {
-		return evals, false
+	b := bracketRun{s: s, p: p}
+	ok = b.servoLevel(0)
+	if b.evals > maxBracketEvals {
+		return b.evals, false
 	}
 	// Each source's branch current is what its node's other elements
 	// draw: the source's row of the node equations then holds exactly.
-	for b, vs := range s.c.VSources {
-		s.x[s.nn+b] = -s.nodeCurrent(idx(vs.P))
+	for k, vs := range s.c.VSources {
+		s.x[s.nn+k] = -s.nodeCurrent(idx(vs.P))
 	}
-	return evals, true
+	return b.evals, ok
+}
+
+// maxServos and maxLevels bound the servos and the nesting depth (servo
+// values outermost, then the coupled nodes) the bracketed solve takes on;
+// maxBracketEvals bounds its node-current evaluations (about 0.1 s).
+const (
+	maxServos       = 2
+	maxLevels       = 4
+	maxBracketEvals = 1 << 20
+)
+
+// bracketRun is one bracketed solve in progress.
+type bracketRun struct {
+	s     *dcSystem
+	p     bracketPlan
+	evals int
+}
+
+// fixSources puts every voltage source's node at its value (a servoed
+// source at its present trial value) and returns the lowest and highest of
+// them and 0 V: every free node lies between the two.
+func (b *bracketRun) fixSources() (lo, hi float64) {
+	s := b.s
+	for k, vs := range s.c.VSources {
+		v := s.sourceValue(k)
+		s.x[idx(vs.P)] = v
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	return lo, hi
+}
+
+// servoLevel solves servo j and those after it, with the nodes solved for
+// each trial value. A servo's equation (a transistor's current, a node's
+// voltage) is monotone in its source's value in these circuits, so a
+// bracket on the value converges; where the equation has no root in the
+// bracket (the bias cannot be met there), the value stays at the end
+// nearer the root and the KCL check rejects the result.
+func (b *bracketRun) servoLevel(j int) bool {
+	s := b.s
+	if j == s.ns {
+		return b.nodes()
+	}
+	sv := s.c.Servos[j]
+	row := s.nn + s.nb + j
+	ok := true
+	f := func(u float64) float64 {
+		s.x[row] = u
+		if !b.servoLevel(j + 1) {
+			ok = false
+		}
+		switch sv.Kind {
+		case ServoCurrent:
+			m := s.c.FETs[sv.Target]
+			e := m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B))
+			return float64(m.Dev.Polarity())*e.ID - sv.Value
+		default:
+			return s.v(Node(sv.Target)) - sv.Value
+		}
+	}
+	// The box Newton keeps servo values in: the bounds widened by their
+	// span on each side, so a solution just outside the supply is found
+	// and reported as such by the caller.
+	span := math.Max(sv.Hi-sv.Lo, 1)
+	a, c := sv.Lo-span, sv.Hi+span
+	fa, fc := f(a), f(c)
+	if (fa > 0) == (fc > 0) && fa != 0 && fc != 0 {
+		end := a
+		if math.Abs(fc) < math.Abs(fa) {
+			end = c
+		}
+		f(end)
+		return false
+	}
+	root, rok := b.brent(f, a, c, fa, fc)
+	f(root)
+	return ok && rok
+}
+
+// nodes solves every free node at the present source values: the lone
+// nodes one at a time, then the coupled ones by nested brackets.
+func (b *bracketRun) nodes() bool {
+	ok := true
+	for _, k := range b.p.alone {
+		if !b.rootOf(k, nil) {
+			ok = false
+		}
+	}
+	if len(b.p.nested) > 0 && !b.rootOf(b.p.nested[0], b.p.nested[1:]) {
+		ok = false
+	}
+	return ok
 }
 
 // rootOf solves node row k's equation by Brent's method on its bracket,
 // solving the inner rows afresh for each trial voltage of k (nested
 // brackets). It leaves s.x at the root with the inner rows solved there.
-func (s *dcSystem) rootOf(k int, p bracketPlan, inner []int, evals *int) bool {
+func (b *bracketRun) rootOf(k int, inner []int) bool {
+	s := b.s
 	innerOK := true
 	f := func(v float64) float64 {
 		s.x[k] = v
-		if len(inner) > 0 && !s.rootOf(inner[0], p, inner[1:], evals) {
+		if len(inner) > 0 && !b.rootOf(inner[0], inner[1:]) {
 			innerOK = false
 		}
-		*evals++
+		b.evals++
 		return s.nodeCurrent(k)
 	}
 	// Every node lies between the lowest and highest fixed voltage; a
 	// device whose current at zero drain-source voltage is not exactly
 	// zero may move the root by a hair, so the bracket widens if needed.
-	a, b := p.lo, p.hi
-	span := math.Max(b-a, 1)
-	fa, fb := f(a), f(b)
+	lo, hi := b.fixSources()
+	span := math.Max(hi-lo, 1)
+	fa, fb := f(lo), f(hi)
 	for w := 0; fa > 0 && w < 4; w++ {
-		a -= span
-		fa = f(a)
+		lo -= span
+		fa = f(lo)
 	}
 	for w := 0; fb < 0 && w < 4; w++ {
-		b += span
-		fb = f(b)
+		hi += span
+		fb = f(hi)
 	}
 	if !(fa <= 0 && fb >= 0) || !innerOK {
 		return false
 	}
-	root, ok := brent(f, a, b, fa, fb)
+	root, ok := b.brent(f, lo, hi, fa, fb)
 	f(root) // leave the inner rows solved at the root
 	return ok && innerOK
 }
 
-// brent finds a zero of f in [a, b], where f(a) and f(b) differ in sign (or
+// brent is brentRoot, stopped once the run has spent its evaluations.
+func (b *bracketRun) brent(f func(float64) float64, lo, hi, flo, fhi float64) (float64, bool) {
+	if b.evals > maxBracketEvals {
+		return lo, false
+	}
+	return brentRoot(f, lo, hi, flo, fhi)
+}
+
+// brentRoot finds a zero of f in [a, b], where f(a) and f(b) differ in sign (or
 // one is zero), by Brent's method: inverse quadratic interpolation or the
 // secant step when it stays well inside the bracket and shrinks it fast
 // enough, bisection otherwise (R. P. Brent, Algorithms for Minimization
 // without Derivatives, 1973, ch. 4; from memory). It stops when the
 // bracket is narrower than 4·ε·|x| + 2·bracketTolV, or f is exactly 0.
-func brent(f func(float64) float64, a, b, fa, fb float64) (float64, bool) {
+func brentRoot(f func(float64) float64, a, b, fa, fb float64) (float64, bool) {
 	if fa == 0 {
 		return a, true
 	}

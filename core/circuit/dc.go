@@ -474,27 +474,60 @@ func (c *Circuit) SolveDC(guess Guess, opt Options) (OperatingPoint, error) {
 	// 4. The bracketed solve, for the circuits where it cannot miss.
 	tried := false
 	if !opt.NoBracket {
-		if _, ok := s.planBracketed(); ok {
-			tried = true
-			if _, ok := s.bracketed(); ok {
-				s.assemble()
-				if ok, _, _, _ := s.kclCheck(true); ok {
-					return done("bracketed")
-				}
-			}
+		var ok bool
+		if tried, ok = s.bracketedChecked(); ok {
+			return done("bracketed")
 		}
 	}
+	return OperatingPoint{}, s.failure(total, tried)
+}
 
-	s.scale, s.gmin = 1, opt.GMin
+// failure is the error of a solve that found nothing, with the worst
+// residual at the last iterate.
+func (s *dcSystem) failure(iters int, bracketed bool) error {
+	s.scale, s.gmin = 1, s.opt.GMin
 	s.assemble()
 	_, worst := s.residualOK()
-	return OperatingPoint{}, &NoConvergenceError{
-		Iterations: total,
+	return &NoConvergenceError{
+		Iterations: iters,
 		Node:       s.rowName(worst),
 		Residual:   math.Abs(s.f[worst]),
 		Reason:     "every method failed",
-		Bracketed:  tried,
+		Bracketed:  bracketed,
 	}
+}
+
+// bracketedChecked runs the bracketed solve where it applies and the KCL
+// check on its result.
+func (s *dcSystem) bracketedChecked() (applies, ok bool) {
+	if _, applies = s.planBracketed(); !applies {
+		return false, false
+	}
+	if _, ok = s.bracketed(); !ok {
+		return true, false
+	}
+	s.assemble()
+	ok, _, _, _ = s.kclCheck(true)
+	return true, ok
+}
+
+// SolveBracketed runs only the bracketed solve (bracket.go), the last
+// fallback of SolveDC, for a caller that ran SolveDC with NoBracket and
+// has checked in between whether the circuit can have a solution at all.
+// It fails with a *NoConvergenceError (Bracketed false when the circuit is
+// outside the method's reach).
+func (c *Circuit) SolveBracketed(opt Options) (OperatingPoint, error) {
+	if err := c.Check(); err != nil {
+		return OperatingPoint{}, err
+	}
+	opt = opt.withDefaults()
+	s := newDCSystem(c, opt)
+	defer s.release()
+	applies, ok := s.bracketedChecked()
+	if ok {
+		return s.result(0, "bracketed"), nil
+	}
+	return OperatingPoint{}, s.failure(0, applies)
 }
 
 // checked applies the KCL check to a Newton result (s.evals is fresh: the

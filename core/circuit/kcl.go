@@ -118,6 +118,24 @@ func (s *dcSystem) kclCheck(fresh bool) (ok bool, worst int, imb, tol float64) {
 		d := s.v(vs.P) - s.v(vs.N) - val
 		check(nn+k, d, s.opt.VoltTol+s.opt.RelTol*(math.Abs(val)+math.Abs(s.v(vs.P))+math.Abs(s.v(vs.N))))
 	}
+	// Each servo's equation: a current to the relative tolerance with the
+	// same femtoamp floor, a voltage to Newton's voltage tolerance.
+	for j, sv := range s.c.Servos {
+		row := nn + s.nb + j
+		switch sv.Kind {
+		case ServoCurrent:
+			m := s.c.FETs[sv.Target]
+			id := s.evals[sv.Target].ID
+			if !fresh {
+				id = m.Dev.Current(s.v(m.D), s.v(m.G), s.v(m.S), s.v(m.B)).ID
+			}
+			d := float64(m.Dev.Polarity())*id - sv.Value
+			check(row, d, kclRelTol*math.Max(math.Abs(sv.Value), math.Abs(id))+gmin*kclFloorV)
+		case ServoVoltage:
+			d := s.v(Node(sv.Target)) - sv.Value
+			check(row, d, s.opt.VoltTol+s.opt.RelTol*math.Abs(sv.Value))
+		}
+	}
 	return ok, worst, imb, tol
 }
 

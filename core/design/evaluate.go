@@ -103,7 +103,10 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 		var se *stage.Error
 		if errors.As(err, &se) {
 			code := "no_operating_point"
-			if se.Key == "gmid" || se.Key == "stage" || se.Key == "load" || se.Key == "pol" {
+			switch {
+			case se.SolverFailed:
+				code = CodeSolverFailed
+			case se.Key == "gmid" || se.Key == "stage" || se.Key == "load" || se.Key == "pol":
 				code = "bias"
 			}
 			return fail(res, code, se.Key, se.Message)

@@ -69,7 +69,9 @@ type Result struct {
 }
 
 // Failure says why there is no result: Code is one of "fragment",
-// "no_operating_point", "bias", "internal"; Key names the input to change.
+// "no_operating_point" (the design has none, for the reason given), "bias",
+// CodeSolverFailed (the solver failed; the design may well have one) and
+// "internal"; Key names the input to change.
 type Failure struct {
 	Code    string `json:"code"`
 	Message string `json:"message"`
@@ -186,3 +188,8 @@ type Noise struct {
 // Characters such as & stay as they are (no HTML escaping), so the
 // fragment in "design" reads as typed.
 func (r *Result) JSON() []byte { return r.AppendJSON(nil) }
+
+// CodeSolverFailed is the error code of a design whose operating point the
+// DC solver could not find, although nothing shows that none exists: a
+// failure of the solver, never a property of the design.
+const CodeSolverFailed = "solver_failed"

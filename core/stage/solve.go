@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"stagewright/core/circuit"
 	"stagewright/core/device"
@@ -130,16 +131,31 @@ func solveOnce(spec Spec, warm []float64) (*Solution, error) {
 			guess[circuit.Node(i)] = v
 		}
 	}
-	op, err := b.C.SolveDC(guess, circuit.Options{})
+	// Newton–Raphson and its continuations first; when they fail, the
+	// causes that show no operating point can exist (named in the user's
+	// terms); only then the bracketed solve, which cannot miss a solution
+	// of the circuits it applies to but costs more.
+	op, err := b.C.SolveDC(guess, circuit.Options{NoBracket: true})
 	if err != nil {
 		var nc *circuit.NoConvergenceError
-		if errors.As(err, &nc) {
-			if msg, key, ok := diagnose(spec); ok {
+		if !errors.As(err, &nc) {
+			return nil, err
+		}
+		if msg, key, ok := diagnose(spec); ok {
+			return nil, &Error{Key: key, Message: msg}
+		}
+		newton := nc.Iterations
+		op, err = b.C.SolveBracketed(circuit.Options{})
+		if err != nil {
+			if !errors.As(err, &nc) {
+				return nil, err
+			}
+			if msg, key, ok := diagnoseActiveLoad(spec); ok {
 				return nil, &Error{Key: key, Message: msg}
 			}
-			return nil, &Error{Key: biasKey(spec), Message: "no operating point: " + explainFailure(spec) + " (" + nc.Error() + ")"}
+			return nil, solverFailure(spec, b, nc, newton)
 		}
-		return nil, err
+		op.Iterations = newton
 	}
 	sol := &Solution{Built: b, OP: op, Iterations: op.Iterations, W: spec.W}
 	if err := sol.checkServos(); err != nil {
@@ -155,6 +171,9 @@ func solveOnce(spec Spec, warm []float64) (*Solution, error) {
 func diagnose(s Spec) (msg, key string, ok bool) {
 	if s.Bias == ByVin {
 		return "", "", false
+	}
+	if s.Kind == SF && s.Load == Active {
+		return diagnoseFollowerSink(s)
 	}
 	p := s
 	p.Bias = ByVin
@@ -179,18 +198,71 @@ func diagnose(s Spec) (msg, key string, ok bool) {
 	m := b.C.FETs[b.M1]
 	most := m.Dev.Report(v[m.D], v[m.G], v[m.S], v[m.B]).ID
 	if most < s.ID {
-		who, key := "M1", "id"
-		if s.Kind == SF && s.Load == Active {
-			who = "the current sink M2 (with M1)"
-		}
-		return fmt.Sprintf("no operating point: %s can carry at most %s in this %s stage with its bias at the supply rail, less than the %s asked; make W/L larger or the current smaller",
-			who, eng(most, "A"), s.Kind, eng(s.ID, "A")), key, true
-	}
-	if s.Load == Active && s.Kind != SF {
-		return fmt.Sprintf("no operating point: M1 and its current-source load cannot both carry %s with the output held at %s; move vout or resize the load (lw, ll)",
-			eng(s.ID, "A"), eng(s.VOut, "V")), "vout", true
+		return fmt.Sprintf("no operating point: M1 can carry at most %s in this %s stage with its bias at the supply rail, less than the %s asked; make W/L larger or the current smaller",
+			eng(most, "A"), s.Kind, eng(s.ID, "A")), "id", true
 	}
 	return "", "", false
+}
+
+// diagnoseFollowerSink covers the source follower with a current sink,
+// whose input level stays as given while the sink's gate is solved: M1's
+// current falls as the output rises, so it is largest with the output at
+// M1's source-side rail; if that is short of the target, no output level
+// serves. Otherwise M1 carries the target at one output level, and the
+// sink, whose current rises with its gate drive, must carry it there with
+// its gate at the rail.
+func diagnoseFollowerSink(s Spec) (msg, key string, ok bool) {
+	dev1, err := device.New(s.Pol, s.Process.Params(s.Pol), s.Process.TNom, s.W, s.L, s.TempK)
+	if err != nil {
+		return "", "", false
+	}
+	dev2, err := device.New(s.Pol, s.Process.Params(s.Pol), s.Process.TNom, s.LoadW, s.LoadL, s.TempK)
+	if err != nil {
+		return "", "", false
+	}
+	near, far, gateOn := 0.0, s.VDD, s.VDD // rails for an NMOS follower
+	if s.Pol == device.PMOS {
+		near, far, gateOn = s.VDD, 0, 0
+	}
+	m1 := func(out float64) float64 { return math.Abs(dev1.Current(far, s.Vin, out, near).ID) }
+	if most := m1(near); most < s.ID {
+		move := "raise vin"
+		if s.Pol == device.PMOS {
+			move = "lower vin"
+		}
+		return fmt.Sprintf("no operating point: M1, with its gate at vin = %s, can carry at most %s in this sf stage even with the output at the rail, less than the %s asked; %s, make W/L larger or the current smaller",
+			eng(s.Vin, "V"), eng(most, "A"), eng(s.ID, "A"), move), "vin", true
+	}
+	// The output level at which M1 carries the target, by bisection:
+	// near carries at least the target, far nothing.
+	a, b := near, far
+	for i := 0; i < 200 && a != b; i++ {
+		mid := (a + b) / 2
+		if mid == a || mid == b {
+			break
+		}
+		if m1(mid) >= s.ID {
+			a = mid
+		} else {
+			b = mid
+		}
+	}
+	out := a
+	if sink := math.Abs(dev2.Current(out, gateOn, near, near).ID); sink < s.ID {
+		return fmt.Sprintf("no operating point: the current sink M2 can carry at most %s with its gate at the supply rail at the output level %s where M1 carries the %s asked; make the sink wider (lw) or shorter (ll), or the current smaller",
+			eng(sink, "A"), eng(out, "V"), eng(s.ID, "A")), "lw", true
+	}
+	return "", "", false
+}
+
+// diagnoseActiveLoad is the named cause for a cs or cg stage with a
+// current-source load biased by current, once every solver has failed.
+func diagnoseActiveLoad(s Spec) (msg, key string, ok bool) {
+	if s.Bias == ByVin || s.Load != Active || s.Kind == SF {
+		return "", "", false
+	}
+	return fmt.Sprintf("no operating point: M1 and its current-source load cannot both carry %s with the output held at %s; move vout or resize the load (lw, ll)",
+		eng(s.ID, "A"), eng(s.VOut, "V")), "vout", true
 }
 
 func biasKey(s Spec) string {
@@ -200,11 +272,77 @@ func biasKey(s Spec) string {
 	return "id"
 }
 
-func explainFailure(s Spec) string {
+// solverFailure is the error of a stage whose operating point no method
+// found, though nothing shows that none exists: it says that the solver
+// failed and what about the design makes it hard.
+func solverFailure(s Spec, b *Built, nc *circuit.NoConvergenceError, newton int) *Error {
+	what := "the bias voltages"
 	if s.Bias == ByVin {
-		return fmt.Sprintf("the %s stage has no DC solution with the input at %s", s.Kind, eng(s.Vin, "V"))
+		what = "the operating point"
 	}
-	return fmt.Sprintf("M1 cannot be biased at %s in this %s stage from a %s supply", eng(s.ID, "A"), s.Kind, eng(s.VDD, "V"))
+	msg := fmt.Sprintf("the DC solver failed: it found %s of this %s stage neither by Newton–Raphson (%d iterations with gmin and source stepping) nor by its bracketed fallback; this is a limit of the solver, not a finding about the design",
+		what, s.Kind, newton)
+	if hard := hardness(s, b); hard != "" {
+		msg += ". What makes it hard: " + hard
+	}
+	return &Error{Key: biasKey(s), Message: msg + " (" + nc.Error() + ")", SolverFailed: true}
+}
+
+// hardness names what makes a stage hard to solve: the two elements of the
+// chain compared by the current each would carry with the output at
+// mid-supply (gates at their given or starting levels), how little the
+// weaker one carries, and an extreme temperature.
+func hardness(s Spec, b *Built) string {
+	c := b.C
+	v := make([]float64, c.NodeCount())
+	for _, vs := range c.VSources {
+		v[vs.P] = vs.V
+	}
+	near := 0.0
+	if s.Pol == device.PMOS {
+		near = s.VDD
+	}
+	out := b.Nodes["out"]
+	v[out] = s.VDD / 2
+	if n, ok := b.Nodes["src"]; ok {
+		v[n] = near
+	}
+	in := b.Nodes["in"]
+	v[in] = s.Vin
+	fetCurrent := func(i int) float64 {
+		m := c.FETs[i]
+		return math.Abs(m.Dev.Current(v[m.D], v[m.G], v[m.S], v[m.B]).ID)
+	}
+	i1, name2 := fetCurrent(b.M1), "M2"
+	var i2 float64
+	if b.M2 >= 0 {
+		i2 = fetCurrent(b.M2)
+	} else {
+		for _, r := range c.Resistors {
+			if r.Name == "RD" || (r.Name == "RS" && s.Kind == SF) {
+				i2, name2 = math.Abs(v[r.A]-v[r.B])/r.R, r.Name
+			}
+		}
+	}
+	var parts []string
+	lo, hi := math.Min(i1, i2), math.Max(i1, i2)
+	if lo > 0 && hi/lo >= 1e3 {
+		strong, weak := "M1", name2
+		if i2 > i1 {
+			strong, weak = name2, "M1"
+		}
+		parts = append(parts, fmt.Sprintf("%s is %.0f decades stronger than %s (%s against %s with the output at mid-supply), so the output sits within millivolts of a rail",
+			strong, math.Log10(hi/lo), weak, eng(hi, "A"), eng(lo, "A")))
+	} else if lo == 0 && hi > 0 {
+		parts = append(parts, fmt.Sprintf("the weaker of M1 and %s carries no current at all with the output at mid-supply", name2))
+	}
+	if lo > 0 && lo < 1e-12 {
+		parts = append(parts, fmt.Sprintf("the weaker carries only %s, femtoamps to picoamps", eng(lo, "A")))
+	}
+	if t := s.TempK - 273.15; t < -20 || t > 100 {
+		parts = append(parts, fmt.Sprintf("the temperature is %.0f °C", t))
+	}
+	return strings.Join(parts, "; ")
 }
 
 // checkServos rejects solutions whose solved bias voltages fall outside

@@ -67,6 +67,10 @@ type Spec struct {
 type Error struct {
 	Key     string
 	Message string
+	// SolverFailed marks a failure of the DC solver rather than a property
+	// of the design: no method found the operating point, and nothing shows
+	// that none exists. Every other Error is about the design.
+	SolverFailed bool
 }
 
 func (e *Error) Error() string { return e.Message }

@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"stagewright/core/design"
+	"stagewright/core/stage"
 )
 
 // The helpers every subcommand shares: splitting its arguments, decoding
@@ -73,6 +74,17 @@ func failJSON(stdout, stderr io.Writer, cmd, code, key, msg string) int {
 	stdout.Write(append(out, '\n'))
 	fmt.Fprintf(stderr, "stagewright %s: %s\n", cmd, msg)
 	return 1
+}
+
+// opFailureCode is the JSON error code of an analysis that found no
+// operating point: solver_failed when the DC solver failed on a design
+// that may well have one, no_operating_point otherwise.
+func opFailureCode(err error) string {
+	var se *stage.Error
+	if errors.As(err, &se) && se.SolverFailed {
+		return design.CodeSolverFailed
+	}
+	return "no_operating_point"
 }
 
 // decodeFor decodes a fragment strictly: any problem is a design error.

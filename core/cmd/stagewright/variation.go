@@ -61,7 +61,7 @@ func cmdCorners(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	rows, err := variation.Corners(d)
 	if err != nil {
-		return failJSON(stdout, stderr, "corners", "no_operating_point", "", err.Error())
+		return failJSON(stdout, stderr, "corners", opFailureCode(err), "", err.Error())
 	}
 	if *asCSV {
 		writeCornersCSV(stdout, rows)
@@ -183,7 +183,7 @@ func cmdMC(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	r, err := variation.MonteCarlo(d, *n, *seed, targets)
 	if err != nil {
-		return failJSON(stdout, stderr, "mc", "no_operating_point", "", err.Error())
+		return failJSON(stdout, stderr, "mc", opFailureCode(err), "", err.Error())
 	}
 	out, err := marshal(struct {
 		OK     bool               `json:"ok"`
