@@ -213,7 +213,7 @@ func TestSchemaListsKeys(t *testing.T) {
 		for _, k := range keys {
 			seen[k.Key] = true
 		}
-		for _, k := range []string{"stage", "pol", "w", "l", "id", "rd", "cl", "fmax", "n.vt0"} {
+		for _, k := range []string{"stage", "pol", "w", "l", "id", "rd", "cl", "fmax", "n.thresh"} {
 			if !seen[k] {
 				t.Errorf("schema(%q) lacks key %q", proc, k)
 			}

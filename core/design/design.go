@@ -28,9 +28,14 @@ const (
 	BiasGmID BiasMode = "gmid" // gm/ID and the drain current are given; the engine finds W at the given L
 )
 
-// Override replaces one process parameter of one polarity, e.g. Key "n.vt0".
+// Override replaces one process parameter of one polarity, e.g. Key
+// "n.thresh". With L = 0 it applies at every length; with L > 0 it belongs
+// to the parameter set fitted at that length (a length bin, written
+// "n.thresh@180n" in a fragment), and a polarity with any such override
+// has bins (see device.Process.ParamsAt).
 type Override struct {
 	Key   string
+	L     float64 // m, the bin's length; 0 = every length
 	Value float64
 }
 

@@ -63,7 +63,7 @@ type KeyInfo struct {
 
 // Schema returns the key table for the built-in process proc ("" or an
 // unknown name: d180): the plain keys in canonical order, then every
-// process-parameter override ("n.bex" … "p.vt0") with the process's value as
+// process-parameter override ("n.body" … "p.velsat") with the process's value as
 // its default. The result is freshly allocated and safe to marshal as JSON
 // (no infinities).
 func Schema(proc string) []KeyInfo {

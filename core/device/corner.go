@@ -94,6 +94,8 @@ func Corner(pr Process, name string) (Process, error) {
 	out := pr
 	out.N = shift(pr.N, pr.Spread(NMOS), kn)
 	out.P = shift(pr.P, pr.Spread(PMOS), kp)
+	out.NBins = shiftBins(pr.NBins, pr.Spread(NMOS), kn)
+	out.PBins = shiftBins(pr.PBins, pr.Spread(PMOS), kp)
 	out.Title = pr.Title + ", corner " + name // Name stays, so Spread and look-ups by name still work
 	if err := out.N.Validate(); err != nil {
 		return pr, fmt.Errorf("device: corner %q of process %q, n-channel: %w", name, pr.Name, err)
@@ -102,6 +104,18 @@ func Corner(pr Process, name string) (Process, error) {
 		return pr, fmt.Errorf("device: corner %q of process %q, p-channel: %w", name, pr.Name, err)
 	}
 	return out, nil
+}
+
+// shiftBins returns a copy of bins with each set moved as shift moves one.
+func shiftBins(bins []Bin, s Spread, k float64) []Bin {
+	if len(bins) == 0 || k == 0 {
+		return bins
+	}
+	out := make([]Bin, len(bins))
+	for i, b := range bins {
+		out[i] = Bin{L: b.L, Params: shift(b.Params, s, k)}
+	}
+	return out
 }
 
 // cornerSign maps a corner letter to the number of global σ a device is

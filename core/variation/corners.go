@@ -1,9 +1,11 @@
 package variation
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"stagewright/core/design"
 	"stagewright/core/device"
@@ -99,27 +101,34 @@ func Corners(d design.Design) ([]CornerRow, error) {
 	return rows, nil
 }
 
-// withCorner returns a copy of overrides (sorted by key) with the
-// threshold and mobility of both polarities set to those of cp.
+// withCorner returns a copy of overrides (sorted by key and length) with
+// the threshold and mobility of both polarities, and of each length bin,
+// set to those of cp.
 func withCorner(overrides []design.Override, cp device.Process) []design.Override {
 	out := slices.Clone(overrides)
-	for _, o := range [...]design.Override{
-		{Key: "n.u0", Value: cp.N.U0}, {Key: "n.vt0", Value: cp.N.VT0},
-		{Key: "p.u0", Value: cp.P.U0}, {Key: "p.vt0", Value: cp.P.VT0},
-	} {
-		i, found := slices.BinarySearchFunc(out, o.Key, func(a design.Override, k string) int {
-			switch {
-			case a.Key < k:
-				return -1
-			case a.Key > k:
-				return 1
+	set := func(o design.Override) {
+		i, found := slices.BinarySearchFunc(out, o, func(a, b design.Override) int {
+			if c := strings.Compare(a.Key, b.Key); c != 0 {
+				return c
 			}
-			return 0
+			return cmp.Compare(a.L, b.L)
 		})
 		if found {
 			out[i].Value = o.Value
 		} else {
 			out = slices.Insert(out, i, o)
+		}
+	}
+	for _, pol := range [...]struct {
+		prefix string
+		params device.Params
+		bins   []device.Bin
+	}{{"n.", cp.N, cp.NBins}, {"p.", cp.P, cp.PBins}} {
+		set(design.Override{Key: pol.prefix + "mobility", Value: pol.params.U0})
+		set(design.Override{Key: pol.prefix + "thresh", Value: pol.params.VT0})
+		for _, b := range pol.bins {
+			set(design.Override{Key: pol.prefix + "mobility", L: b.L, Value: b.Params.U0})
+			set(design.Override{Key: pol.prefix + "thresh", L: b.L, Value: b.Params.VT0})
 		}
 	}
 	return out

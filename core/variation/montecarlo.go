@@ -279,12 +279,12 @@ func newSampler(d design.Design) (*sampler, error) {
 	}
 	m.sp1 = m.pr.Spread(spec.Pol)
 	m.area1 = spec.W * spec.L
-	m.nomPar[0] = m.pr.Params(spec.Pol)
+	m.nomPar[0] = m.pr.ParamsAt(spec.Pol, spec.L)
 	if b.M2 >= 0 {
 		m.pol2 = b.Dev2.Polarity()
 		m.sp2 = m.pr.Spread(m.pol2)
 		m.area2 = spec.LoadW * spec.LoadL
-		m.nomPar[1] = m.pr.Params(m.pol2)
+		m.nomPar[1] = m.pr.ParamsAt(m.pol2, spec.LoadL)
 	}
 	return m, nil
 }

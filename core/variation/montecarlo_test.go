@@ -109,7 +109,7 @@ func TestPelgromScaling(t *testing.T) {
 		}
 		idAt := func(dv float64) float64 {
 			dd := d
-			dd.Overrides = []design.Override{{Key: "n.vt0", Value: pr.N.VT0 + dv}}
+			dd.Overrides = []design.Override{{Key: "n.thresh", Value: pr.N.VT0 + dv}}
 			res := design.Evaluate(dd)
 			if !res.OK {
 				t.Fatal(res.Error)

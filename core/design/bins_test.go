@@ -1,0 +1,73 @@
+package design
+
+import (
+	"math"
+	"stagewright/core/units"
+	"testing"
+)
+
+// A device whose length is a bin's gets that bin's parameters exactly, so a
+// binned design at a bin length evaluates as the same design with the
+// bin's values given for every length; between two bins it lies between.
+func TestBinsInADesign(t *testing.T) {
+	const base = "v=2&stage=cs&pol=n&proc=d180&w=10u&bias=vin&vin=0.7&load=r&rd=10k"
+	const bins = "&n.thresh@180n=420m&n.thresh@1u=500m"
+	var e Evaluator
+	id := func(frag string) float64 {
+		t.Helper()
+		d, err := Decode(frag)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := e.Evaluate(d)
+		if !r.OK {
+			t.Fatalf("%s: %v", frag, r.Error)
+		}
+		return float64(r.OP.ID)
+	}
+	for _, c := range []struct{ l, thresh string }{{"180n", "420m"}, {"1u", "500m"}} {
+		got, want := id(base+"&l="+c.l+bins), id(base+"&l="+c.l+"&n.thresh="+c.thresh)
+		// 1e-12: the same parameters reached two ways; only the solver's
+		// rounding differs.
+		if math.Abs(got/want-1) > 1e-12 {
+			t.Errorf("L = %s: ID %.12g with bins, %.12g with thresh %s", c.l, got, want, c.thresh)
+		}
+	}
+	// At 400 nm the threshold is interpolated in 1/L:
+	// 0.42 + 0.08·(1/180n − 1/400n)/(1/180n − 1/1u) = 0.4701 V.
+	frac := (1/180e-9 - 1/400e-9) / (1/180e-9 - 1/1e-6)
+	mid := id(base + "&l=400n" + bins)
+	want := id(base + "&l=400n&n.thresh=" + units.Exact(0.42+0.08*frac))
+	if math.Abs(mid/want-1) > 1e-9 {
+		t.Errorf("L = 400n: ID %.12g with bins, %.12g with the interpolated threshold", mid, want)
+	}
+}
+
+func TestProcessOfBins(t *testing.T) {
+	d, err := Decode("n.mobility=25m&n.thresh@1u=0.5&n.lenmod@300n=30n&n.thresh@300n=0.44")
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr, err := d.ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(pr.NBins) != 2 || pr.NBins[0].L != 300e-9 || pr.NBins[1].L != 1e-6 || len(pr.PBins) != 0 {
+		t.Fatalf("bins %+v", pr.NBins)
+	}
+	short, long := pr.NBins[0].Params, pr.NBins[1].Params
+	if short.VT0 != 0.44 || short.LambdaL != 30e-9 || long.VT0 != 0.5 || long.LambdaL != pr.N.LambdaL {
+		t.Errorf("bin values: short %+v long %+v", short, long)
+	}
+	if short.U0 != 25e-3 || long.U0 != 25e-3 {
+		t.Error("an override for every length must reach every bin")
+	}
+	d.Aids.Corner = "ss"
+	ss, err := d.ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(ss.NBins[0].Params.VT0 > short.VT0) {
+		t.Error("the slow corner did not raise a bin's threshold")
+	}
+}
