@@ -2,6 +2,8 @@ package design
 
 import (
 	"math"
+	"stagewright/core/device"
+	"stagewright/core/extract"
 	"stagewright/core/units"
 	"testing"
 )
@@ -69,5 +71,25 @@ func TestProcessOfBins(t *testing.T) {
 	}
 	if !(ss.NBins[0].Params.VT0 > short.VT0) {
 		t.Error("the slow corner did not raise a bin's threshold")
+	}
+}
+
+// Every parameter the fit adjusts is held inside what a link accepts, so a
+// fitted process always opens as a link.
+func TestFitBoundsInsideLinkRanges(t *testing.T) {
+	for _, info := range device.ParamTable {
+		lo, hi, ok := extract.Bounds(info.Key)
+		if !ok {
+			continue
+		}
+		f, _, found := lookupOverride("n." + info.Key)
+		if !found {
+			t.Errorf("%s: fitted but not a link key", info.Key)
+			continue
+		}
+		sp := f.span()
+		if !numberOK(lo, sp, false, false) || !numberOK(hi, sp, false, false) {
+			t.Errorf("%s: fit bounds %g … %g, link accepts %g … %g", info.Key, lo, hi, f.lo, f.hi)
+		}
 	}
 }

@@ -4,12 +4,6 @@ import (
 	"stagewright/core/device"
 )
 
-// lengthBin is one channel length's own parameter set.
-type lengthBin struct {
-	L      float64 // m
-	Params device.Params
-}
-
 // binFree are the parameters each length may have of its own: those that
 // describe the channel at one length (threshold with its roll-off, the
 // current factor, mobility reduction, CLM, DIBL, a constant slope factor).
@@ -21,7 +15,7 @@ var binFree = map[string]bool{"thresh": true, "mobility": true, "mobred": true, 
 // fitBins fits one set per length jointly with the shared parameters,
 // starting every length from the global set. The per-length parameters of
 // the fitter's evaluator are left set to the result.
-func (f *fitter) fitBins(global device.Params, progress func(done, total int) bool) ([]lengthBin, int, bool) {
+func (f *fitter) fitBins(global device.Params, progress func(done, total int) bool) ([]device.Bin, int, bool) {
 	var shared, own []freeParam
 	for _, p := range f.free {
 		if binFree[p.key] {
@@ -72,9 +66,9 @@ func (f *fitter) fitBins(global device.Params, progress func(done, total int) bo
 		residual: func(x, r []float64) bool { return f.residualAt(unpack(x), r) }}
 	res := levenbergMarquardt(pb, x0, progress)
 	unpack(res.x)
-	bins := make([]lengthBin, len(ls))
+	bins := make([]device.Bin, len(ls))
 	for b, l := range ls {
-		bins[b] = lengthBin{L: l, Params: sets[b]}
+		bins[b] = device.Bin{L: l, Params: sets[b]}
 	}
 	return bins, res.iterations, res.cancelled
 }
