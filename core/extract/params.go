@@ -27,7 +27,7 @@ var freeParams = []freeParam{
 	{"body", func(p *device.Params) *float64 { return &p.Gamma }, 1e-3, 3, true},    // γ below 1 m√V changes nothing measurable
 	{"slope", func(p *device.Params) *float64 { return &p.NFixed }, 1, 3, false},    // a constant n
 	{"surface", func(p *device.Params) *float64 { return &p.Phi }, 0.2, 1.5, false}, // 2φF
-	{"mobred", func(p *device.Params) *float64 { return &p.Theta }, 1e-4, 5, true}, // θ·n·U_T below 3e-6: no effect
+	{"mobred", func(p *device.Params) *float64 { return &p.Theta }, 1e-4, 5, true},  // θ·n·U_T below 3e-6: no effect
 	{"velsat", func(p *device.Params) *float64 { return &p.ECrit }, 1e5, 1e10, true},
 	{"lenmod", func(p *device.Params) *float64 { return &p.LambdaL }, 1e-10, 1e-6, true}, // λ below 1e-4 /V at 1 µm
 	{"dibl", func(p *device.Params) *float64 { return &p.DIBL }, 1e-12, 1e-6, true},      // σ below 1e-5 V/V at 100 nm
