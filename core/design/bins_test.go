@@ -93,3 +93,21 @@ func TestFitBoundsInsideLinkRanges(t *testing.T) {
 		}
 	}
 }
+
+// The link's override table and the device's parameter names are one list:
+// the same keys, the same old names, each reaching the same field.
+func TestOverrideTableMatchesParamTable(t *testing.T) {
+	if len(overrideParams) != len(device.ParamTable) {
+		t.Fatalf("%d override parameters, %d device parameters", len(overrideParams), len(device.ParamTable))
+	}
+	for i, info := range device.ParamTable {
+		f := &overrideParams[i]
+		if f.name != info.Key || f.old != info.Old {
+			t.Errorf("row %d: link %s (was %q), device %s (was %q)", i, f.name, f.old, info.Key, info.Old)
+		}
+		var p device.Params
+		if f.field(&p) != info.Field(&p) {
+			t.Errorf("%s: the two tables name different fields", f.name)
+		}
+	}
+}

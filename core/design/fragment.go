@@ -604,23 +604,25 @@ func (d Design) Validate() error {
 	}
 	pr = lookupProcess(d.Process)
 	for i, o := range d.Overrides {
-		text := units.Exact(o.Value)
-		name := overrideName(o)
+		// The key and value are written out only for a problem: this loop
+		// runs on every evaluation.
+		problem := func(msg string) {
+			problems = append(problems, Problem{overrideName(o), units.Exact(o.Value), msg})
+		}
 		f, ref, ok := lookupOverride(o.Key)
 		switch {
 		case !ok:
-			problems = append(problems, Problem{name, text, unknownKeyMessage(o.Key, "unknown process parameter")})
+			problem(unknownKeyMessage(o.Key, "unknown process parameter"))
 		case ref.key() != o.Key:
-			problems = append(problems, Problem{name, text, "write the parameter by its current name, " + ref.key()})
+			problem("write the parameter by its current name, " + ref.key())
 		case !numberOK(o.Value, f.span(), false, false):
-			problems = append(problems, Problem{name, text, rangeMessage(f.span(), false, false, f.label, f.unit, f.zeroMeans)})
+			problem(rangeMessage(f.span(), false, false, f.label, f.unit, f.zeroMeans))
 		}
 		if o.L != 0 && !(o.L >= pr.LMin && o.L <= pr.LMax) {
-			problems = append(problems, Problem{name, text, binLengthMessage(pr, o.L)})
+			problem(binLengthMessage(pr, o.L))
 		}
 		if i > 0 && compareOverrides(d.Overrides[i-1], o) >= 0 {
-			problems = append(problems, Problem{name, text, "overrides must be sorted by key and length, each once (after " +
-				strconv.Quote(overrideName(d.Overrides[i-1])) + ")"})
+			problem("overrides must be sorted by key and length, each once (after " + strconv.Quote(overrideName(d.Overrides[i-1])) + ")")
 		}
 	}
 	for _, pol := range [...]byte{'n', 'p'} {

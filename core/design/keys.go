@@ -722,7 +722,20 @@ func lookupOverride(key string) (*overrideParam, overrideRef, bool) {
 
 // key returns the override key of ref by the parameter's name: "n.thresh".
 func (ref overrideRef) key() string {
-	return string(ref.pol) + "." + overrideParams[ref.field].name
+	if ref.pol == 'p' {
+		return pKeys[ref.field]
+	}
+	return nKeys[ref.field]
+}
+
+// nKeys and pKeys are the override keys by field, made once (key runs on
+// every evaluation).
+var nKeys, pKeys [len(overrideParams)]string
+
+func init() {
+	for i := range overrideParams {
+		nKeys[i], pKeys[i] = "n."+overrideParams[i].name, "p."+overrideParams[i].name
+	}
 }
 
 // CanonicalKey returns key as the current version writes it: an override

@@ -70,7 +70,16 @@ func polParams(pr *device.Process, pol byte) *device.Params {
 // override of pol names, each base with that length's overrides applied;
 // nil when pol has none.
 func bins(overrides []Override, pol byte, base device.Params) ([]device.Bin, error) {
-	var out []device.Bin
+	n := 0 // at most this many lengths: one allocation for all bins
+	for _, o := range overrides {
+		if o.L != 0 && o.Key[0] == pol {
+			n++
+		}
+	}
+	if n == 0 {
+		return nil, nil
+	}
+	out := make([]device.Bin, 0, n)
 	for _, o := range overrides {
 		if o.L == 0 || o.Key[0] != pol {
 			continue

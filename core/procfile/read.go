@@ -61,7 +61,9 @@ func Read(data []byte) (File, error) {
 		params map[string]float64
 		bins   []binJSON
 	}{{"n", &f.N, j.N, j.NBins}, {"p", &f.P, j.P, j.PBins}} {
-		s.side.Params = s.params
+		if len(s.params) > 0 {
+			s.side.Params = s.params
+		}
 		for _, b := range s.bins {
 			s.side.Bins = append(s.side.Bins, Bin{L: b.L, Params: b.Params})
 		}
