@@ -97,11 +97,19 @@ func TestFitBoundsInsideLinkRanges(t *testing.T) {
 // The link's override table and the device's parameter names are one list:
 // the same keys, the same old names, each reaching the same field.
 func TestOverrideTableMatchesParamTable(t *testing.T) {
-	if len(overrideParams) != len(device.ParamTable) {
-		t.Fatalf("%d override parameters, %d device parameters", len(overrideParams), len(device.ParamTable))
+	var model []*overrideParam
+	for i := range overrideParams {
+		if overrideParams[i].field != nil {
+			model = append(model, &overrideParams[i])
+		} else if overrideParams[i].spread == nil {
+			t.Errorf("%s reaches nothing", overrideParams[i].name)
+		}
+	}
+	if len(model) != len(device.ParamTable) {
+		t.Fatalf("%d override parameters, %d device parameters", len(model), len(device.ParamTable))
 	}
 	for i, info := range device.ParamTable {
-		f := &overrideParams[i]
+		f := model[i]
 		if f.name != info.Key || f.old != info.Old {
 			t.Errorf("row %d: link %s (was %q), device %s (was %q)", i, f.name, f.old, info.Key, info.Old)
 		}
@@ -109,5 +117,39 @@ func TestOverrideTableMatchesParamTable(t *testing.T) {
 		if f.field(&p) != info.Field(&p) {
 			t.Errorf("%s: the two tables name different fields", f.name)
 		}
+	}
+}
+
+// A user's own spread replaces the base's for corners and Monte Carlo;
+// figures left at 0 keep the base's.
+func TestOwnSpread(t *testing.T) {
+	base, _ := device.Builtin("d180")
+	d, err := Decode("n.vtspread=30m&n.vtmatch=8n&p.mobspread=0.06")
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr, err := d.ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	n, p := pr.Spread(device.NMOS), pr.Spread(device.PMOS)
+	bn, bp := base.Spread(device.NMOS), base.Spread(device.PMOS)
+	if n.SigmaVT != 30e-3 || n.AVT != 8e-9 || n.SigmaMu != bn.SigmaMu || n.ABeta != bn.ABeta {
+		t.Errorf("n spread %+v (base %+v)", n, bn)
+	}
+	if p.SigmaMu != 0.06 || p.SigmaVT != bp.SigmaVT {
+		t.Errorf("p spread %+v (base %+v)", p, bp)
+	}
+	d.Aids.Corner = "ss"
+	ss, err := d.ProcessOf()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The slow corner moves VT0 by 3σ of the user's own 30 mV.
+	if got := ss.N.VT0 - base.N.VT0; math.Abs(got-3*30e-3) > 1e-12 {
+		t.Errorf("ss moves the n threshold by %g V, want 90 mV", got)
+	}
+	if _, err := Decode("n.vtspread@1u=30m"); err == nil {
+		t.Error("a spread figure with a length must be refused")
 	}
 }

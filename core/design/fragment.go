@@ -128,6 +128,10 @@ func Decode(fragment string) (Design, error) {
 		base, lText, binned := strings.Cut(key, "@")
 		if f, ref, ok := lookupOverride(base); ok {
 			o := givenOverride{key: key, canon: ref.key(), text: value, pos: pos}
+			if binned && f.spread != nil {
+				report(pos, key, value, base+" is a figure of the whole process's spread: it takes no length (write "+base+"=…)")
+				continue
+			}
 			if binned {
 				l, err := units.Parse(lText)
 				if err != nil || !(l > 0) || math.IsInf(l, 0) {
@@ -620,6 +624,9 @@ func (d Design) Validate() error {
 		}
 		if o.L != 0 && !(o.L >= pr.LMin && o.L <= pr.LMax) {
 			problem(binLengthMessage(pr, o.L))
+		}
+		if o.L != 0 && ok && f.spread != nil {
+			problem("a figure of the whole process's spread takes no length")
 		}
 		if i > 0 && compareOverrides(d.Overrides[i-1], o) >= 0 {
 			problem("overrides must be sorted by key and length, each once (after " + strconv.Quote(overrideName(d.Overrides[i-1])) + ")")

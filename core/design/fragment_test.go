@@ -562,8 +562,8 @@ func TestSchema(t *testing.T) {
 		if !slices.Equal(keys, want) {
 			t.Fatalf("Schema(%q) keys = %q, want %q", proc, keys, want)
 		}
-		if len(overrideKeys) != 2*len(device.ParamTable) {
-			t.Errorf("%d override keys, want %d parameters × 2 polarities", len(overrideKeys), len(device.ParamTable))
+		if len(overrideKeys) != 2*(len(device.ParamTable)+4) {
+			t.Errorf("%d override keys, want %d parameters and 4 spread figures × 2 polarities", len(overrideKeys), len(device.ParamTable))
 		}
 		d := Default(proc)
 		pr, _ := device.Builtin(proc)
@@ -664,9 +664,17 @@ func TestOverrideRanges(t *testing.T) {
 		pr, _ := device.Builtin(name)
 		for _, key := range overrideKeys {
 			f, ref, _ := lookupOverride(key)
-			params := pr.N
+			params, pol := pr.N, device.NMOS
 			if ref.pol == 'p' {
-				params = pr.P
+				params, pol = pr.P, device.PMOS
+			}
+			if f.spread != nil { // a spread figure: the process's own is accepted
+				sp := pr.Spread(pol)
+				frag := "proc=" + name + "&" + key + "=" + units.Exact(*f.spread(&sp))
+				if _, err := Decode(frag); err != nil {
+					t.Errorf("%s: the process's own spread is rejected: %v", frag, err)
+				}
+				continue
 			}
 			v := *f.field(&params)
 			frag := "proc=" + name + "&" + key + "=" + units.Exact(v)

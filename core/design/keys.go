@@ -613,7 +613,8 @@ type overrideParam struct {
 	lo, hi                      float64
 	zeroMeans                   string // 0 is accepted besides [lo, hi] and means this
 	log                         bool
-	field                       func(p *device.Params) *float64
+	field                       func(p *device.Params) *float64 // a model parameter, or
+	spread                      func(s *device.Spread) *float64 // a figure of the manufacturing spread (no length bins)
 }
 
 func (f *overrideParam) span() span {
@@ -624,6 +625,8 @@ func (f *overrideParam) span() span {
 // ranges are generous bounds of physical sense for bulk CMOS, not the
 // limits of any one process.
 var overrideParams = [...]overrideParam{
+	{name: "betamatch", label: "current-factor mismatch A_β", unit: "m", lo: 0, hi: 1e-7, zeroMeans: "the base process's",
+		doc: "Pelgrom current-factor mismatch A_β, m (1 %·µm = 10n): σ(Δβ/β) = A_β/√(W·L) in Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.ABeta }},
 	{name: "body", old: "gamma", label: "body-effect coefficient", unit: "√V", lo: 0, hi: 3,
 		doc: "Body-effect coefficient γ, √V.", field: func(p *device.Params) *float64 { return &p.Gamma }},
 	{name: "dibl", label: "drain-induced barrier lowering", unit: "m", lo: 0, hi: 1e-6,
@@ -650,6 +653,8 @@ var overrideParams = [...]overrideParam{
 		doc: "Low-field carrier mobility µ0 at the nominal temperature, m²/(V·s).", field: func(p *device.Params) *float64 { return &p.U0 }},
 	{name: "mobred", old: "theta", label: "mobility reduction", unit: "1/V", lo: 0, hi: 5,
 		doc: "Mobility reduction θ by the vertical field, 1/V.", field: func(p *device.Params) *float64 { return &p.Theta }},
+	{name: "mobspread", label: "global mobility spread σ(µ)/µ", lo: 0, hi: 0.3, zeroMeans: "the base process's",
+		doc: "One standard deviation of the die-to-die mobility shift, relative (0.04 = 4 %), for corners (3σ) and Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.SigmaMu }},
 	{name: "mobtemp", old: "bex", label: "mobility temperature exponent", lo: -3, hi: 0,
 		doc: "Mobility temperature exponent β_µ: µ(T) = µ0·(T/TNom)^β_µ.", field: func(p *device.Params) *float64 { return &p.BEX }},
 	{name: "ovdrain", old: "cgdo", label: "gate–drain overlap capacitance", unit: "F/m", lo: 0, hi: 5e-9,
@@ -668,6 +673,10 @@ var overrideParams = [...]overrideParam{
 		doc: "Threshold drift dV_T0/dT, V/K: the threshold falls by threshtemp·(T − TNom).", field: func(p *device.Params) *float64 { return &p.TCV }},
 	{name: "velsat", old: "ecrit", label: "critical field", unit: "V/m", lo: 1e5, hi: 1e10, zeroMeans: "off", log: true,
 		doc: "Critical lateral field E_c for velocity saturation, V/m; 0 turns it off.", field: func(p *device.Params) *float64 { return &p.ECrit }},
+	{name: "vtmatch", label: "threshold mismatch A_VT", unit: "V·m", lo: 0, hi: 50e-9, zeroMeans: "the base process's",
+		doc: "Pelgrom threshold mismatch A_VT, V·m (1 mV·µm = 1n): σ(ΔVT) = A_VT/√(W·L) in Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.AVT }},
+	{name: "vtspread", label: "global threshold spread σ(VT)", unit: "V", lo: 0, hi: 0.2, zeroMeans: "the base process's",
+		doc: "One standard deviation of the die-to-die threshold shift, V, for corners (3σ) and Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.SigmaVT }},
 }
 
 // overrideRef says which polarity and parameter an override key names.

@@ -33,6 +33,14 @@ func (d Design) ProcessOf() (device.Process, error) {
 		if !ok {
 			return pr, fmt.Errorf("unknown process parameter %q", o.Key)
 		}
+		if f.spread != nil {
+			sp := &pr.NSpread
+			if ref.pol == 'p' {
+				sp = &pr.PSpread
+			}
+			*f.spread(sp) = o.Value
+			continue
+		}
 		*f.field(polParams(&pr, ref.pol)) = o.Value
 	}
 	var err error
@@ -85,8 +93,8 @@ func bins(overrides []Override, pol byte, base device.Params) ([]device.Bin, err
 			continue
 		}
 		f, _, ok := lookupOverride(o.Key)
-		if !ok {
-			return nil, fmt.Errorf("unknown process parameter %q", o.Key)
+		if !ok || f.field == nil {
+			return nil, fmt.Errorf("%q has no length bins", o.Key)
 		}
 		i, found := slices.BinarySearchFunc(out, o.L, func(b device.Bin, l float64) int {
 			switch {

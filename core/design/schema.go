@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strings"
 
+	"stagewright/core/device"
 	"stagewright/core/units"
 )
 
@@ -115,13 +116,20 @@ func Schema(proc string) []KeyInfo {
 	}
 	for _, key := range overrideKeys {
 		f, ref, _ := lookupOverride(key)
-		params, kind := pr.N, "NMOS"
+		params, pol, kind := pr.N, device.NMOS, "NMOS"
 		if ref.pol == 'p' {
-			params, kind = pr.P, "PMOS"
+			params, pol, kind = pr.P, device.PMOS, "PMOS"
+		}
+		var def float64
+		if f.spread != nil {
+			sp := pr.Spread(pol)
+			def = *f.spread(&sp)
+		} else {
+			def = *f.field(&params)
 		}
 		infos = append(infos, KeyInfo{
 			Key: key, Group: GroupProcess, Label: kind + " " + f.label, Unit: f.unit,
-			Default: *f.field(&params), Min: f.lo, Max: f.hi, Log: f.log, ZeroMeans: f.zeroMeans,
+			Default: def, Min: f.lo, Max: f.hi, Log: f.log, ZeroMeans: f.zeroMeans,
 			Doc: kind + ": " + f.doc,
 		})
 	}

@@ -38,24 +38,35 @@ var spreads = map[string][2]Spread{
 	},
 }
 
-// Spread returns the manufacturing spread of polarity p. A process without
-// its own table (not a built-in one) gets a generic invented spread:
-// SigmaVT 15 mV, SigmaMu 4 %, AVT = 1 mV·µm per nm of Tox and ABeta
-// 1 %·µm. A polarity that is neither NMOS nor PMOS gets the zero Spread.
+// Spread returns the manufacturing spread of polarity p: the process's
+// own figures (NSpread, PSpread) where they are not 0, the rest from the
+// built-in process's table. A process without a table (not a built-in
+// one) gets a generic invented spread: SigmaVT 15 mV, SigmaMu 4 %, AVT =
+// 1 mV·µm per nm of Tox and ABeta 1 %·µm. A polarity that is neither NMOS
+// nor PMOS gets the zero Spread.
 func (pr Process) Spread(p Polarity) Spread {
-	idx := 0
+	idx, own := 0, pr.NSpread
 	switch p {
 	case NMOS:
 	case PMOS:
-		idx = 1
+		idx, own = 1, pr.PSpread
 	default:
 		return Spread{}
 	}
-	if s, ok := spreads[pr.Name]; ok {
-		return s[idx]
+	s, ok := spreads[pr.Name]
+	base := s[idx]
+	if !ok {
+		// 1 mV·µm per nm: AVT = (Tox/1 nm)·1e-9 V·m, which is Tox·(1 V).
+		base = Spread{SigmaVT: 15e-3, SigmaMu: 0.04, AVT: pr.Params(p).Tox * 1.0, ABeta: 1e-8}
 	}
-	// 1 mV·µm per nm: AVT = (Tox/1 nm)·1e-9 V·m, which is Tox·(1 V).
-	return Spread{SigmaVT: 15e-3, SigmaMu: 0.04, AVT: pr.Params(p).Tox * 1.0, ABeta: 1e-8}
+	for _, f := range [...]struct{ own, base *float64 }{
+		{&own.SigmaVT, &base.SigmaVT}, {&own.SigmaMu, &base.SigmaMu}, {&own.AVT, &base.AVT}, {&own.ABeta, &base.ABeta},
+	} {
+		if *f.own != 0 {
+			*f.base = *f.own
+		}
+	}
+	return base
 }
 
 // CornerNames lists the process corners Corner accepts: the first letter

@@ -161,6 +161,10 @@ type Process struct {
 	// NBins and PBins are per-length parameter sets, sorted by L; empty
 	// when one set (N, P) serves every length. See ParamsAt.
 	NBins, PBins []Bin
+
+	// NSpread and PSpread replace the manufacturing spread field by field
+	// where they are not 0 (a user's own figures); see Spread.
+	NSpread, PSpread Spread
 }
 
 // Params returns the parameters of polarity p; for a value that is neither

@@ -1,12 +1,14 @@
 package procfile
 
 import (
+	"errors"
 	"math"
 	"slices"
 	"strconv"
 	"strings"
 
 	"stagewright/core/chardata"
+	"stagewright/core/design"
 	"stagewright/core/device"
 	"stagewright/core/extract"
 	"stagewright/core/jsonenc"
@@ -33,7 +35,12 @@ type Side struct {
 	// Params are parameters by their device.ParamTable keys; a key that
 	// is absent keeps the base process's value.
 	Params map[string]float64
-	Bins   []Bin   // per-length sets, rising in L; empty when none
+	Bins   []Bin // per-length sets, rising in L; empty when none
+
+	// Spread holds the user's own manufacturing spread by the link's keys
+	// (vtspread, mobspread, vtmatch, betamatch); an absent key keeps the
+	// base process's, for corners and Monte Carlo.
+	Spread map[string]float64
 	Source *Source // the data the parameters were fitted to; nil when none
 	Report []byte  // the fit report, JSON as extract.Result.AppendReportJSON writes it; nil when none
 }
@@ -133,9 +140,18 @@ func (f File) Fragment() string {
 				}
 			}
 		}
+		for _, key := range spreadKeys {
+			if v, ok := s.side.Spread[key]; ok {
+				b = appendKey(b, s.pol, key, 0, v)
+			}
+		}
 	}
 	return string(b)
 }
+
+// spreadKeys are the keys of a Side's Spread, in the order Fragment
+// writes them.
+var spreadKeys = [...]string{"betamatch", "mobspread", "vtmatch", "vtspread"}
 
 func appendKey(b []byte, pol, key string, l, v float64) []byte {
 	b = append(b, '&')
@@ -235,6 +251,25 @@ func (f File) Check() error {
 				return &Error{Field: field, Message: err.Error()}
 			}
 		}
+		for key := range s.side.Spread {
+			if !slices.Contains(spreadKeys[:], key) {
+				return &Error{Field: s.pol + "_spread." + key, Message: "unknown spread figure (give " + strings.Join(spreadKeys[:], ", ") + ")"}
+			}
+		}
+	}
+	// The link form must open as it is: the design decoder holds every key
+	// to its range (the spread figures among them).
+	if _, err := design.Decode(f.Fragment()); err != nil {
+		var fe *design.FragmentError
+		if errors.As(err, &fe) && len(fe.Problems) > 0 {
+			p := fe.Problems[0]
+			field := p.Key
+			if pol, key, ok := strings.Cut(p.Key, "."); ok && slices.Contains(spreadKeys[:], key) {
+				field = pol + "_spread." + key
+			}
+			return &Error{Field: field, Message: p.Message}
+		}
+		return &Error{Message: err.Error()}
 	}
 	return nil
 }
@@ -273,6 +308,10 @@ func (f File) AppendJSON(b []byte) []byte {
 			b = append(b, "\n  "...)
 		}
 		b = append(b, ']')
+		if len(s.side.Spread) > 0 {
+			b = append(b, ",\n  \""+s.pol+"_spread\": "...)
+			b = appendParams(b, s.side.Spread)
+		}
 	}
 	b = append(b, ",\n  \"source\": {"...)
 	first := true

@@ -117,6 +117,26 @@ func mustBuiltin(t *testing.T, name string) device.Process {
 	return pr
 }
 
+func TestSpreadInTheFile(t *testing.T) {
+	f := demo(t)
+	f.N.Spread = map[string]float64{"vtspread": 0.025, "vtmatch": 6e-9}
+	g, err := Read(f.AppendJSON(nil))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(f.N.Spread, g.N.Spread) {
+		t.Errorf("spread read back as %v", g.N.Spread)
+	}
+	d, err := design.Decode(g.Fragment())
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr, _ := d.ProcessOf()
+	if s := pr.Spread(device.NMOS); s.SigmaVT != 0.025 || s.AVT != 6e-9 {
+		t.Errorf("the link's n spread is %+v", s)
+	}
+}
+
 func TestApply(t *testing.T) {
 	f := File{Name: "x", Base: "d65", VDD: 1.1, N: Side{Params: map[string]float64{"thresh": 0.4, "mobility": 0.02}}}
 	got := Apply("#v=1&stage=cs&proc=d180&vdd=1.8&n.thresh=0.5&w=2u", f)
@@ -156,6 +176,8 @@ func TestReadProblems(t *testing.T) {
 		{"bin length", strings.Replace(good, `{"l": 1.8e-07`, `{"l": 1e-09`, 1), "n_bins[0].l: length 1n m outside the base's 180n … 20u m"},
 		{"bin order", strings.Replace(good, `{"l": 1.8e-07`, `{"l": 9e-06`, 1), "n_bins[1].l: bins must rise in length"},
 		{"vdd", strings.Replace(good, `"vdd": 1.8`, `"vdd": 50`, 1), "vdd: supply 50 V outside"},
+		{"spread key", strings.Replace(good, `"p": {}`, `"p": {}, "p_spread": {"sigma": 1}`, 1), "p_spread.sigma: unknown spread figure"},
+		{"spread range", strings.Replace(good, `"p": {}`, `"p": {}, "p_spread": {"vtspread": 2}`, 1), "p_spread.vtspread: global threshold spread"},
 	} {
 		_, err := Read([]byte(c.text))
 		if err == nil || !strings.Contains(err.Error(), c.want) {
@@ -182,8 +204,8 @@ func TestLineColumn(t *testing.T) {
 // Numbers are written as the shortest decimal that reads back to the same
 // float64 (strconv's 'g', -1 form, which encoding/json reads exactly).
 func TestNumbersRoundTrip(t *testing.T) {
-	// difflen accepts 0 … 100 µm.
-	for _, v := range []float64{0, 1e-5 / 3, 4.1e-9, 3.3e-7, 1e-6 - 1e-22, 7.000000000000001e-5, math.SmallestNonzeroFloat64} {
+	// difflen accepts 0 … 10 µm in a link.
+	for _, v := range []float64{0, 1e-5 / 3, 4.1e-9, 3.3e-7, 1e-6 - 1e-22, 7.000000000000001e-6, math.SmallestNonzeroFloat64} {
 		b := appendNumber(nil, v)
 		g, err := Read([]byte(`{"format":"stagewright-process","version":1,"name":"x","base":"d180","n":{"difflen":` + string(b) + `}}`))
 		if err != nil {

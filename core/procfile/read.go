@@ -23,6 +23,8 @@ type fileJSON struct {
 	P       map[string]float64 `json:"p"`
 	NBins   []binJSON          `json:"n_bins"`
 	PBins   []binJSON          `json:"p_bins"`
+	NSpread map[string]float64 `json:"n_spread"`
+	PSpread map[string]float64 `json:"p_spread"`
 	Source  map[string]struct {
 		File        string `json:"file"`
 		Fingerprint string `json:"fingerprint"`
@@ -60,7 +62,11 @@ func Read(data []byte) (File, error) {
 		side   *Side
 		params map[string]float64
 		bins   []binJSON
-	}{{"n", &f.N, j.N, j.NBins}, {"p", &f.P, j.P, j.PBins}} {
+		spread map[string]float64
+	}{{"n", &f.N, j.N, j.NBins, j.NSpread}, {"p", &f.P, j.P, j.PBins, j.PSpread}} {
+		if len(s.spread) > 0 {
+			s.side.Spread = s.spread
+		}
 		if len(s.params) > 0 {
 			s.side.Params = s.params
 		}
