@@ -352,6 +352,24 @@ func (r *Result) AppendJSON(b []byte) []byte {
 		w.close(']')
 		w.close('}')
 	}
+	if l := r.Large; l != nil {
+		w.key("large_signal")
+		w.open('{')
+		if sl := l.Slew; sl != nil {
+			w.key("slew")
+			w.open('{')
+			w.key("up")
+			w.num(sl.Up)
+			w.key("down")
+			w.num(sl.Down)
+			w.key("i_up")
+			w.num(sl.IUp)
+			w.key("i_down")
+			w.num(sl.IDown)
+			w.close('}')
+		}
+		w.close('}')
+	}
 	w.close('}')
 	return w.b
 }
