@@ -86,6 +86,8 @@ type Design struct {
 // Ranges, a sweep of one input key, and a pinned reference design.
 type Aids struct {
 	Corner string  // process corner: tt, ss, ff, sf, fs (first letter NMOS, second PMOS)
+	VDDTol float64 // the corner table's supply spread, a fraction of VDD
+	Hold   string  // what holds an id or gmid bias at the corners and in Monte Carlo: mirror, fixed, ideal
 	Amp    float64 // V, amplitude of the input sine for distortion
 	MC     int     // Monte Carlo samples, 0 … 10000
 	Seed   int     // seed of every random draw

@@ -902,6 +902,8 @@ func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi f
 	corners := []string{"tt", "ss", "ff", "sf", "fs"}
 	a := Aids{
 		Corner: corners[rng.IntN(len(corners))],
+		VDDTol: num(0, 0.5, false),
+		Hold:   []string{"mirror", "fixed", "ideal"}[rng.IntN(3)],
 		Amp:    num(1e-6, d.VDD, true),
 		MC:     rng.IntN(10001),
 		Seed:   rng.IntN(1e9 + 1),
@@ -995,7 +997,7 @@ func BenchmarkValidate(b *testing.B) {
 // only when they differ from their defaults, and the pinned design.
 func TestAidKeys(t *testing.T) {
 	d := Default("")
-	want := Aids{Corner: "tt", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
+	want := Aids{Corner: "tt", VDDTol: 0.1, Hold: "mirror", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
 		Ranges: Ranges{W: Range{1e-6, 200e-6}, L: Range{180e-9, 3.6e-6}, ID: Range{1e-6, 1e-3},
 			RD: Range{100, 1e6}, RS: Range{10, 100e3}},
 		Sweep: SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}

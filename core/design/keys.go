@@ -476,6 +476,25 @@ var keyTable = [...]keyDef{
 		optional: true,
 	},
 	{
+		name: "vddtol", group: GroupAids, label: "supply tolerance of the corners",
+		doc: "Supply spread of the corner table, a fraction of vdd: rows at vdd·(1 − vddtol), vdd and vdd·(1 + vddtol); " +
+			"0 keeps vdd alone.",
+		span: fixed(0, 0.5), def: constant(0.1), optional: true,
+		get: func(d *Design) float64 { return d.Aids.VDDTol },
+		set: func(d *Design, v float64) { d.Aids.VDDTol = v },
+	},
+	{
+		name: "hold", group: GroupAids, label: "bias held by",
+		doc: "What holds the bias of an id or gmid design at the corners and in Monte Carlo: mirror, a diode-connected copy " +
+			"of each current-biased transistor carrying the nominal current and varying with the rest; fixed, the nominal " +
+			"bias voltages; ideal, the current itself, exactly.",
+		words: func(*Design) []string { return holdWords }, defWord: "mirror",
+		getWord:  func(d *Design) string { return d.Aids.Hold },
+		setWord:  func(d *Design, w string) { d.Aids.Hold = w },
+		when:     []Condition{{Biases: []string{string(BiasID), string(BiasGmID)}}},
+		optional: true,
+	},
+	{
 		name: "amp", group: GroupAids, label: "input amplitude", unit: "V",
 		doc:  "Amplitude of the input sine for the distortion figures, V.",
 		span: func(_ *device.Process, d *Design) span { return span{lo: 1e-6, hi: d.VDD, hiName: "vdd"} },
@@ -796,6 +815,7 @@ func clamp(v, lo, hi float64) float64 {
 // The design aids' words and relevance conditions.
 var (
 	cornerWords = device.CornerNames()
+	holdWords   = []string{"mirror", "fixed", "ideal"}
 	// sweepWords are the keys a sweep may move, set in init: every number
 	// key of the design above the aids but the frequency sweep's own, then
 	// every override.
