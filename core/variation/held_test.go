@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"stagewright/core/design"
+	"stagewright/core/device"
 )
 
 // The follower with a current sink at the slow corner and 125 °C: its sink
@@ -128,5 +129,58 @@ func TestMirrorHeldBias(t *testing.T) {
 			t.Errorf("%s %g °C: a fixed gate moves ID by %.3g, the mirror by %.3g: want the fixed gate to move it more",
 				r.Corner, float64(r.Temp), float64(fr.ID)/100e-6-1, got-1)
 		}
+	}
+}
+
+// Monte Carlo of a mirror-held common-source stage. With every spread off
+// each sample is the mirror corner's tt row. With the global shift alone
+// the mirror and M1 move together, so ID moves far less than a fixed gate
+// lets it. With mismatch alone, the copy and M1 mismatch like a current
+// mirror's pair: σ(ΔID/ID)² = (gm/ID)²·(σ²VT1 + σ²VTref) + σ²β1 + σ²βref,
+// each σ by Pelgrom's law (Pelgrom, Duinmaijer, Welbers, IEEE JSSC 1989),
+// to first order.
+func TestMonteCarloMirrorHeld(t *testing.T) {
+	const frag = "stage=cs&pol=n&load=r&rd=5k&bias=id&id=100u&w=10u&l=1u&vddtol=0"
+	d := decode(t, frag)
+	rows, err := Corners(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tt := findRow(t, rows, "tt", 27)
+	nom, err := MonteCarloWith(d, Options{Samples: 3, Seed: 1, NoGlobal: true, NoMismatch: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The two solve the same circuit from different starts: 1e-6.
+	if math.Abs(float64(nom.ID.Mean/tt.ID)-1) > 1e-6 || math.Abs(float64(nom.Gain.Mean/tt.Gain)-1) > 1e-6 {
+		t.Errorf("nominal sample ID %g gain %g, tt row ID %g gain %g", float64(nom.ID.Mean), float64(nom.Gain.Mean), float64(tt.ID), float64(tt.Gain))
+	}
+	const n = 3000
+	glob, err := MonteCarloWith(d, Options{Samples: n, Seed: 5, NoMismatch: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fixedGlob, err := MonteCarloWith(decode(t, frag+"&hold=fixed"), Options{Samples: n, Seed: 5, NoMismatch: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(float64(glob.ID.SD) < 0.2*float64(fixedGlob.ID.SD)) {
+		t.Errorf("global shift: σ(ID) %g held by a mirror, %g by a fixed gate", float64(glob.ID.SD), float64(fixedGlob.ID.SD))
+	}
+	mis, err := MonteCarloWith(d, Options{Samples: n, Seed: 9, NoGlobal: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr, _ := device.Builtin("d180")
+	sp := pr.Spread(device.NMOS)
+	area := 10e-6 * 1e-6
+	res := design.Evaluate(d)
+	gmid := float64(res.OP.GmID)
+	svt, sb := sp.AVT/math.Sqrt(area), sp.ABeta/math.Sqrt(area)
+	hand := math.Sqrt(gmid*gmid*2*svt*svt+2*sb*sb) * float64(res.OP.ID)
+	// Four standard errors of a sample σ, plus 5 % for the first-order
+	// form (gm/ID moves across the spread).
+	if e := math.Abs(float64(mis.ID.SD)/hand - 1); e > relSE4(n)+0.05 {
+		t.Errorf("mismatch: σ(ID) %g, Pelgrom hand %g (rel %.3f)", float64(mis.ID.SD), hand, e)
 	}
 }
