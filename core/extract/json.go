@@ -169,23 +169,38 @@ type jw struct {
 	comma bool
 }
 
+//go:noinline
 func (w *jw) sep() {
 	if w.comma {
 		w.b = append(w.b, ',')
 	}
 	w.comma = true
 }
+
+//go:noinline
 func (w *jw) key(k string) {
 	w.sep()
 	w.b = jsonenc.AppendString(w.b, k)
 	w.b = append(w.b, ':')
 	w.comma = false
 }
-func (w *jw) open(c byte)  { w.sep(); w.b = append(w.b, c); w.comma = false }
+
+//go:noinline
+func (w *jw) open(c byte) { w.sep(); w.b = append(w.b, c); w.comma = false }
+
+//go:noinline
 func (w *jw) close(c byte) { w.b = append(w.b, c); w.comma = true }
+
+//go:noinline
 func (w *jw) raw(s string) { w.sep(); w.b = append(w.b, s...) }
+
+//go:noinline
 func (w *jw) str(s string) { w.sep(); w.b = jsonenc.AppendString(w.b, s) }
-func (w *jw) int(i int)    { w.sep(); w.b = strconv.AppendInt(w.b, int64(i), 10) }
+
+//go:noinline
+func (w *jw) int(i int) { w.sep(); w.b = strconv.AppendInt(w.b, int64(i), 10) }
+
+//go:noinline
 func (w *jw) num(v float64) {
 	w.sep()
 	if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -194,6 +209,8 @@ func (w *jw) num(v float64) {
 	}
 	w.b = strconv.AppendFloat(w.b, v, 'g', -1, 64)
 }
+
+//go:noinline
 func (w *jw) nums(v []float64) {
 	w.open('[')
 	for _, x := range v {
