@@ -12,6 +12,7 @@ import { parseSI, exactSI, formatSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
 import { startSaved } from './saved.js';
+import { startProcess } from './process/index.js';
 
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
@@ -414,6 +415,13 @@ async function main() {
     open: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); },
   });
   state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  // "Your process" (process/index.js): after the design aids, reached from the header too
+  const proc = startProcess({ engine: aidEngine, download, canonical: () => state.canonical, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  document.querySelector('.results').appendChild(proc.section);
+  $('goto-proc').addEventListener('click', () => {
+    proc.section.scrollIntoView({ block: 'start' });
+    $('proc-file').focus({ preventScroll: true });
+  });
   let schemaReady;
   let info;
   try {
