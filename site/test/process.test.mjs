@@ -100,7 +100,7 @@ test('design with it as n-type, then reopen the link: the same figures', async (
   await open(page, DESIGN);
   const onBase = await figures();
   // the list survives the reload; Show brings the report back
-  await page.click('#proc-table .proc-show');
+  await page.click('#proc-items .proc-show');
   designed = await designWith('#proc-design-n');
   assert.match(designed.canonical, /(^|&)proc=d180(&|$)/);
   assert.match(designed.canonical, /(^|&)pol=n(&|$)/);
@@ -121,7 +121,7 @@ test('design with it as n-type, then reopen the link: the same figures', async (
 });
 
 test('a bad CSV names the line and the column and keeps the fit shown', async () => {
-  await page.click('#proc-table .proc-show');
+  await page.click('#proc-items .proc-show');
   const heading = await page.textContent('#proc-shown');
   const lines = readFileSync(demoN, 'utf8').split('\n');
   const cells = lines[13].split(',');
@@ -145,7 +145,7 @@ test('a bad CSV names the line and the column and keeps the fit shown', async ()
 });
 
 test('save the process file, load it back: the same design fragment', async () => {
-  await page.click('#proc-table .proc-show');
+  await page.click('#proc-items .proc-show');
   const [dl] = await Promise.all([page.waitForEvent('download'), page.click('#proc-save')]);
   const path = join(tmp, dl.suggestedFilename());
   await dl.saveAs(path);
@@ -197,16 +197,50 @@ test('bad process files: JSON by line and column, base and parameters by key', a
 });
 
 test('rename and delete in the list, kept across a reload', async () => {
-  const first = page.locator('#proc-table tbody tr').first().locator('input.saved-name');
+  const first = page.locator('#proc-items li').first().locator('input.saved-name');
   await first.fill('my fab 180');
   await first.press('Enter');
   await first.dispatchEvent('change');
   await open(page, DESIGN);
-  assert.equal(await page.locator('#proc-table tbody tr').first().locator('input.saved-name').inputValue(), 'my fab 180');
-  await page.locator('#proc-table .proc-delete').first().click();
+  assert.equal(await page.locator('#proc-items li').first().locator('input.saved-name').inputValue(), 'my fab 180');
+  await page.locator('#proc-items .proc-delete').first().click();
   assert.equal(await data('processes'), '1');
   await open(page, DESIGN);
-  assert.equal(await page.locator('#proc-table tbody tr').count(), 1);
+  assert.equal(await page.locator('#proc-items li').count(), 1);
+});
+
+test('a p-type file: magnitudes in the plots, a p-type design on it', async () => {
+  await open(page, DESIGN);
+  await page.selectOption('#proc-pol', 'p');
+  const { state } = await fit(join(here, '..', '..', 'testdata', 'chardata', 'demo_p.csv'));
+  assert.equal(state, 'done', await page.textContent('#proc-msg'));
+  assert.equal(await page.textContent('#proc-shown'), 'demo_p: p-type on d180');
+  assert.match(await page.textContent('#proc-summary'), /\|VGS\| 0\sV … 1\.8\sV/);
+  assert.match(await page.textContent('#proc figcaption'), /^\|ID\| against \|VGS\|/);
+  const onP = await designWith('#proc-design-p');
+  assert.match(onP.canonical, /(^|&)pol=p(&|$)/);
+  assert.match(onP.canonical, /&p\.thresh=/);
+  assert.doesNotMatch(onP.canonical, /&n\./, 'the n-type device stays the base one');
+  assert.equal(await page.evaluate(() => window.stagewrightPage.result().ok), true);
+  // as n-type: M1 is the base's n-type device, the fitted p-type one stays in the link
+  const onN = await designWith('#proc-design-n');
+  assert.match(onN.canonical, /(^|&)pol=n(&|$)/);
+  assert.match(onN.canonical, /&p\.thresh=/);
+  await page.selectOption('#proc-pol', 'n');
+});
+
+test('cancel: the best parameters so far, marked, kept beside the full fit', async () => {
+  const before = Number(await data('processes'));
+  await page.setInputFiles('#proc-file', demoN);
+  await page.waitForFunction(() => document.body.dataset.procFile === 'demo_n.csv');
+  await page.click('#proc-fit');
+  await page.click('#proc-cancel');
+  await page.waitForFunction(() => document.body.dataset.fitState !== 'running', null, { timeout: 60000 });
+  assert.equal(await data('fitState'), 'cancelled');
+  assert.match(await page.textContent('#proc-progress-text'), /cancelled/);
+  assert.match(await page.textContent('#proc-overall'), /cancelled before the end/);
+  assert.equal(await page.textContent('#proc-shown'), 'demo_n (cancelled): n-type on d180');
+  assert.equal(Number(await data('processes')), before + 1);
 });
 
 test('no request outside the page, no page errors', async () => {

@@ -126,13 +126,17 @@ export function startProcess(host) {
     let vdd = 0;
     let bases = ['d180', 'd65'];
     const params = [];
+    const words = new Map(); // override key → its label and unit
     for (const k of result) {
-      if (/^[np]\./.test(k.key)) defaults.set(k.key, k.default);
+      if (/^[np]\./.test(k.key)) {
+        defaults.set(k.key, k.default);
+        words.set(k.key, k.unit ? `${k.label}, ${k.unit}` : k.label);
+      }
       if (k.key.startsWith('n.')) params.push(k.key.slice(2));
       if (k.key === 'vdd') vdd = k.default;
       if (k.key === 'proc' && Array.isArray(k.choices) && k.choices.length) bases = k.choices;
     }
-    const info = { defaults, vdd, bases, params };
+    const info = { defaults, vdd, bases, params, words };
     schemas.set(b, info);
     return info;
   }
@@ -206,8 +210,10 @@ export function startProcess(host) {
       const fit = state.result;
       const entry = entryFromFit(fit, file.name, options);
       entry.id = `u${++serial}`;
-      // A fit of the same file with the same settings replaces the earlier one.
-      const same = entries.findIndex((e) => e.options === options && e.source && entry.source && e.source.fingerprint === entry.source.fingerprint);
+      // A fit of the same file with the same settings replaces the earlier
+      // one; a cancelled fit replaces only a cancelled one.
+      if (fit.cancelled) entry.name = cleanProcessName(`${entry.name} (cancelled)`);
+      const same = entries.findIndex((e) => e.options === options && e.cancelled === entry.cancelled && e.source && entry.source && e.source.fingerprint === entry.source.fingerprint);
       if (same >= 0) {
         entry.name = entries[same].name;
         entries[same] = entry;
@@ -294,10 +300,10 @@ export function startProcess(host) {
     if (shown !== e) return;
     const rows = Object.keys(e.params).sort()
       .filter((k) => e.params[k] !== info.defaults.get(`${e.pol}.${k}`))
-      .map((k) => [k, num(e.params[k], 4), num(info.defaults.get(`${e.pol}.${k}`), 4)]);
+      .map((k) => [h('span', {}, h('code', { text: k }), info.words.has(`${e.pol}.${k}`) ? ` ${info.words.get(`${e.pol}.${k}`)}` : ''), num(e.params[k], 4), num(info.defaults.get(`${e.pol}.${k}`), 4)]);
     if (!rows.length) return;
     const binNote = e.bins.length ? `Per-length sets at L = ${list(e.bins.map((b) => b.l), 'm')} (the model interpolates in 1/L between them).` : '';
-    paramsBox.append(table(`Fitted parameters (SI units) against ${e.base}`, ['parameter', 'fitted', e.base], rows, { id: 'proc-param-table' }), binNote ? h('p', { class: 'aid-note', text: binNote }) : '');
+    paramsBox.append(table(`Fitted parameters (SI units; the link's ${e.pol}.* keys) against ${e.base}`, ['parameter', 'fitted', e.base], rows, { id: 'proc-param-table' }), binNote ? h('p', { class: 'aid-note', text: binNote }) : '');
   }
 
   // --- designing with a process
@@ -321,7 +327,6 @@ export function startProcess(host) {
     if (e.vdd && e.vdd !== info.vdd) pairs.push(['vdd', String(e.vdd)]);
     pairs.push(...kept.filter(([k]) => !/^[np]\./.test(k)), ['pol', m1], ...kept.filter(([k]) => /^[np]\./.test(k)), ...splitFragment(e.fragment));
     const fragment = joinFragment(pairs);
-    document.body.dataset.procDesigned = fragment;
     say(designed, `The design is now on ${e.name}: ${m1}-type M1 on ${e.base} with the fitted ${e.pol}-type parameters (${splitFragment(e.fragment).length} keys in the link).`);
     host.go(fragment);
   }
@@ -430,15 +435,11 @@ export function startProcess(host) {
         return b;
       };
       const f = (e.report && e.report.fit) || {};
-      return h(
-        'tr',
-        { 'data-id': e.id },
-        h('td', {}, name),
-        h('td', { text: `${e.pol}-type` }),
-        h('td', { text: e.base }),
-        h('td', { class: 'num', text: pct(f.id_rms_pct) }),
-        h('td', { class: 'num', text: pct(f.gm_id_rms_pct) }),
-        h('td', { class: 'saved-actions' },
+      const facts = `${e.pol}-type on ${e.base}; ID rms error ${pct(f.id_rms_pct)}, gm/ID ${pct(f.gm_id_rms_pct)}${e.source && e.source.file ? `; from ${e.source.file}` : ''}`;
+      return h('li', { class: 'proc-item', 'data-id': e.id },
+        name,
+        h('span', { class: 'proc-facts', text: facts }),
+        h('span', { class: 'saved-actions' },
           btn('proc-show', 'Show', () => show(e)),
           btn('proc-use', 'Use', () => {
             show(e);
@@ -452,12 +453,9 @@ export function startProcess(host) {
               report.hidden = true;
             }
             renderList();
-          })),
-      );
+          })));
     });
-    listBox.appendChild(h('div', { class: 'table-wrap' }, h('table', { class: 'grid', id: 'proc-table' },
-      h('thead', {}, h('tr', {}, ['name', 'type', 'base', 'ID rms', 'gm/ID rms', ''].map((t) => h('th', { scope: 'col', text: t })))),
-      h('tbody', {}, rows))));
+    listBox.appendChild(h('ul', { class: 'proc-items', id: 'proc-items' }, rows));
   }
 
   window.addEventListener('storage', (e) => {

@@ -38,6 +38,16 @@ export function alignCurves(curves, { xLog = false, yLog = false } = {}) {
   return out;
 }
 
+/**
+ * Shortens the curves' labels ("L=180 nm VDS=1.80 V VBS=0.00 V") to what
+ * tells them apart: {labels, common}, common being the parts all share.
+ */
+export function splitLabels(labels) {
+  const parts = labels.map((l) => String(l).split(/\s+(?=[^\s=]+=)/));
+  const common = parts.length > 1 ? parts[0].filter((p) => parts.every((q) => q.includes(p))) : [];
+  return { labels: parts.map((ps) => ps.filter((p) => !common.includes(p)).join(' ') || ps.join(' ')), common: common.join(', ') };
+}
+
 /** The plots in box; update(plots, pol) draws a fit's plots, update(null) clears them. */
 export function fitPlots(box) {
   const grid = h('div', { class: 'aid-four proc-plots' });
@@ -63,12 +73,14 @@ export function fitPlots(box) {
           continue;
         }
         const series = [];
+        const names = splitLabels(curves.map((cv) => cv.label));
+        if (names.common) c.caption.textContent += `, ${names.common}`;
         curves.forEach((cv, i) => {
           const colour = CURVE_COLOURS[i % CURVE_COLOURS.length];
           series.push({ label: `${cv.label} data`, stroke: colour, points: true }, { label: `${cv.label} model`, stroke: colour, width: 1.5, spanGaps: true });
           const swatch = h('span', { class: 'proc-swatch' });
           swatch.style.background = colour; // through the CSSOM: the page's CSP allows no style attribute
-          c.legend.appendChild(h('li', {}, swatch, h('span', { text: cv.label })));
+          c.legend.appendChild(h('li', {}, swatch, h('span', { text: names.labels[i] })));
         });
         c.chart.spec = {
           ...c.s,

@@ -75,7 +75,7 @@ export function entryFromFit(fit, file, options) {
   }));
   const stem = String(file || 'data').replace(/\.[a-z0-9]{1,5}$/i, '');
   return cleanEntry({
-    name: `${stem} (${fit.pol}, ${fit.base})`,
+    name: cleanProcessName(stem) || 'process',
     pol: fit.pol,
     base: fit.base,
     vdd: 0,
