@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"stagewright/core/chardata"
+	"stagewright/core/design"
 	"stagewright/core/device"
 	"stagewright/core/extract"
 	"stagewright/core/jsonenc"
@@ -62,8 +63,8 @@ func parseFitOptions(s string) (fitOptions, *ErrorInfo) {
 			}
 			o.read.Pol, polGiven = pol, true
 		case "base":
-			if _, ok := device.Builtin(value); !ok {
-				return bad(key, quoteShort(value)+" is not a built-in process (give one of "+strings.Join(device.BuiltinNames(), ", ")+")")
+			if !design.IsProcess(value) { // the process list comes through core/design, as schema's
+				return bad(key, quoteShort(value)+" is not a built-in process (give one of "+strings.Join(design.Processes(), ", ")+")")
 			}
 			o.base = value
 		case "w", "l", "temp":
