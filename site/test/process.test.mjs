@@ -144,6 +144,18 @@ test('a bad CSV names the line and the column and keeps the fit shown', async ()
   await page.fill('#proc-w', '');
 });
 
+test('a file dropped on the panel is read like a chosen one', async () => {
+  const text = readFileSync(demoN, 'utf8');
+  await page.evaluate((t) => {
+    const dt = new DataTransfer();
+    dt.items.add(new File([t], 'dropped.csv', { type: 'text/csv' }));
+    const target = document.getElementById('proc');
+    for (const type of ['dragover', 'drop']) target.dispatchEvent(new DragEvent(type, { dataTransfer: dt, bubbles: true, cancelable: true }));
+  }, text);
+  await page.waitForFunction(() => document.body.dataset.procFile === 'dropped.csv');
+  assert.match(await page.textContent('#proc-file-note'), /^dropped\.csv: .*704 lines, read in this page/);
+});
+
 test('save the process file, load it back: the same design fragment', async () => {
   await page.click('#proc-items .proc-show');
   const [dl] = await Promise.all([page.waitForEvent('download'), page.click('#proc-save')]);
