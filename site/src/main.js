@@ -24,7 +24,11 @@ const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
 const aidEngine = {
   ready: null,
   call(method, ...args) {
-    return (this.ready || Promise.resolve(state.engine)).then((e) => e.call(method, ...args));
+    return this.pin().then((e) => e.call(method, ...args));
+  },
+  /** The engine calls go to now; a job keeps it for all its steps (its run lives in that engine). */
+  pin() {
+    return this.ready || Promise.resolve(state.engine);
   },
   start(module) {
     if (this.ready || !module) return;

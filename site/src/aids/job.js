@@ -21,10 +21,13 @@ export class Job {
     this.cancelAsked = false;
     const t0 = performance.now();
     try {
-      let { result: st } = await callAid(this.engine, this.startMethod, ...(Array.isArray(args) ? args : [args]));
+      // The run lives in one engine: its steps must not go to the aids'
+      // own engine if that starts while the job runs on the page's.
+      const engine = typeof this.engine.pin === 'function' ? await this.engine.pin() : this.engine;
+      let { result: st } = await callAid(engine, this.startMethod, ...(Array.isArray(args) ? args : [args]));
       while (!st.finished) {
         const method = this.cancelAsked ? 'cancel' : 'step';
-        ({ result: st } = await callAid(this.engine, method, st.run));
+        ({ result: st } = await callAid(engine, method, st.run));
         onProgress(st.done, st.total);
       }
       return { state: st, ms: performance.now() - t0 };
