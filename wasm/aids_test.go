@@ -32,7 +32,7 @@ func mustResult(t *testing.T, method string, d decoded, into any) {
 
 func TestAidMethodsAreRegistered(t *testing.T) {
 	names := aidMethodNames()
-	for _, want := range []string{"transfer", "distortion", "corners", "charts", "sweep", "compare", "montecarloStart", "sizeStart", "step", "cancel"} {
+	for _, want := range []string{"transfer", "distortion", "corners", "charts", "sweep", "compare", "montecarloStart", "sizeStart", "fitStart", "step", "cancel"} {
 		found := false
 		for _, n := range names {
 			found = found || n == want
