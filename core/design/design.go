@@ -141,16 +141,16 @@ type VarSet uint16
 
 // The inputs sizing may move, in their canonical order.
 const (
-	VarW   VarSet = 1 << iota // width of M1 (key w)
-	VarL                      // length of M1 (key l)
-	VarID                     // drain current (key id)
-	VarRD                     // drain resistor (key rd)
-	VarRS                     // source resistor (key rs)
-	VarVin                    // input DC level (key vin)
-	VarLW                     // width of the load transistor (key lw)
-	VarLL                     // length of the load transistor (key ll)
-	VarVOut                   // output level of a current-source load (key vout)
-	varAll = VarW | VarL | VarID | VarRD | VarRS | VarVin | VarLW | VarLL | VarVOut
+	VarW    VarSet = 1 << iota // width of M1 (key w)
+	VarL                       // length of M1 (key l)
+	VarID                      // drain current (key id)
+	VarRD                      // drain resistor (key rd)
+	VarRS                      // source resistor (key rs)
+	VarVin                     // input DC level (key vin)
+	VarLW                      // width of the load transistor (key lw)
+	VarLL                      // length of the load transistor (key ll)
+	VarVOut                    // output level of a current-source load (key vout)
+	varAll  = VarW | VarL | VarID | VarRD | VarRS | VarVin | VarLW | VarLL | VarVOut
 )
 
 // varNames are the keys of VarW … VarVOut in bit order.

@@ -64,8 +64,8 @@ type Sizing struct {
 	Ignored  []string      `json:"ignored,omitempty"` // vary entries that do not matter for this stage and bias
 	// Missed are the targets still missed at the best point; Conflicts the
 	// pairs of targets that traded against each other along the search.
-	Missed      []string   `json:"missed,omitempty"`
-	Conflicts   []Conflict `json:"conflicts,omitempty"`
+	Missed    []string   `json:"missed,omitempty"`
+	Conflicts []Conflict `json:"conflicts,omitempty"`
 	// Objective is what the search minimised once every target was met,
 	// nil without one (obj=none).
 	Objective   *Objective `json:"objective,omitempty"`
