@@ -78,7 +78,11 @@ func (s *searcher) failure(out *Sizing) string {
 		}
 	}
 	if len(widen) > 0 {
-		actions = append(actions, "widen "+or(widen)+" (the search reached it)")
+		it := " (the search reached it)"
+		if len(widen) > 1 {
+			it = " (the search reached them)"
+		}
+		actions = append(actions, "widen "+or(widen)+it)
 	}
 	if more := unvaried(&s.base); len(more) > 0 {
 		actions = append(actions, "let vary move "+strings.Join(more, ", ")+" too")
