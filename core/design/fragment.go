@@ -469,7 +469,8 @@ func editDistance(a, b string, limit int) int {
 // temp w l bias id gmid vin vg vout load rd rs lw ll vbl rsig rl cl fmin
 // fmax ppd nlo nhi, then the design aids corner amp mc seed t.gain t.f3db
 // t.gbw t.idd t.power t.swing t.noise t.margin vary lo.w hi.w lo.l hi.l
-// lo.id hi.id lo.rd hi.rd lo.rs hi.rs sw sw.lo sw.hi sw.n pin), then the
+// lo.id hi.id lo.rd hi.rd lo.rs hi.rs hard obj lo.lw hi.lw lo.ll hi.ll lo.vout
+// hi.vout sw sw.lo sw.hi sw.n pin), then the
 // overrides sorted by key. Every key of the design itself that matters for
 // the stage, load and bias mode is written, even at its default, so a link
 // keeps its meaning if a default changes later; any other key, and every

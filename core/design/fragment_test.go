@@ -901,13 +901,15 @@ func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi f
 	inside func(lo, hi float64) float64) Aids {
 	corners := []string{"tt", "ss", "ff", "sf", "fs"}
 	a := Aids{
-		Corner: corners[rng.IntN(len(corners))],
-		VDDTol: num(0, 0.5, false),
-		Hold:   []string{"mirror", "fixed", "ideal"}[rng.IntN(3)],
-		Amp:    num(1e-6, d.VDD, true),
-		MC:     rng.IntN(10001),
-		Seed:   rng.IntN(1e9 + 1),
-		Vary:   VarSet(rng.IntN(64)),
+		Corner:    corners[rng.IntN(len(corners))],
+		VDDTol:    num(0, 0.5, false),
+		Hold:      []string{"mirror", "fixed", "ideal"}[rng.IntN(3)],
+		Amp:       num(1e-6, d.VDD, true),
+		MC:        rng.IntN(10001),
+		Seed:      rng.IntN(1e9 + 1),
+		Vary:      VarSet(rng.IntN(int(varAll) + 1)),
+		Hard:      HardSet(rng.IntN(int(hardAll) + 1)),
+		Objective: Objective(objectiveWords[rng.IntN(len(objectiveWords))]),
 	}
 	target := func(lo, hi float64) float64 {
 		if rng.IntN(2) == 0 {
@@ -931,7 +933,8 @@ func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi f
 		return Range{l, h}
 	}
 	a.Ranges = Ranges{W: span(pr.WMin, pr.WMax), L: span(pr.LMin, pr.LMax), ID: span(1e-9, 10e-3),
-		RD: span(1, 1e9), RS: span(1e-3, 1e9)}
+		RD: span(1, 1e9), RS: span(1e-3, 1e9), LW: span(pr.WMin, pr.WMax), LL: span(pr.LMin, pr.LMax),
+		VOut: span(1e-3*d.VDD, d.VDD)}
 	a.Sweep.Key = sweepWords[rng.IntN(len(sweepWords))]
 	lo, hi, log, _ := d.KeyRange(a.Sweep.Key)
 	a.Sweep.Lo = num(lo, hi, log)
@@ -999,8 +1002,10 @@ func TestAidKeys(t *testing.T) {
 	d := Default("")
 	want := Aids{Corner: "tt", VDDTol: 0.1, Hold: "mirror", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
 		Ranges: Ranges{W: Range{1e-6, 200e-6}, L: Range{180e-9, 3.6e-6}, ID: Range{1e-6, 1e-3},
-			RD: Range{100, 1e6}, RS: Range{10, 100e3}},
-		Sweep: SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}
+			RD: Range{100, 1e6}, RS: Range{10, 100e3}, LW: Range{1e-6, 200e-6}, LL: Range{180e-9, 3.6e-6},
+			VOut: Range{0.18, 1.62}},
+		Objective: ObjNone,
+		Sweep:     SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}
 	if !reflect.DeepEqual(d.Aids, want) {
 		t.Errorf("default aids = %+v\nwant %+v", d.Aids, want)
 	}
@@ -1016,6 +1021,11 @@ func TestAidKeys(t *testing.T) {
 		}, "t.gain=20&t.f3db=50M&t.idd=200u"},
 		{"vary=id.w", func(a Aids) bool { return a.Vary == VarW|VarID }, "vary=w.id"},
 		{"vary=none", func(a Aids) bool { return a.Vary == 0 }, "vary=none"},
+		{"vary=vout.lw.w.ll", func(a Aids) bool { return a.Vary == VarW|VarLW|VarLL|VarVOut }, "vary=w.lw.ll.vout"},
+		{"hard=power.idd&obj=area", func(a Aids) bool { return a.Hard == HardIDD|HardPower && a.Objective == ObjArea }, "hard=idd.power&obj=area"},
+		{"load=active&lo.lw=2u&hi.ll=5u&lo.vout=0.5&hi.vout=1.2", func(a Aids) bool {
+			return a.Ranges.LW == Range{2e-6, 200e-6} && a.Ranges.LL == Range{180e-9, 5e-6} && a.Ranges.VOut == Range{0.5, 1.2}
+		}, "lo.lw=2u&hi.ll=5u&lo.vout=500m&hi.vout=1.2"},
 		{"lo.w=2u&hi.w=50u", func(a Aids) bool { return a.Ranges.W == Range{2e-6, 50e-6} }, "lo.w=2u&hi.w=50u"},
 		// hi.w's default follows lo.w when lo.w is above it.
 		{"lo.w=300u", func(a Aids) bool { return a.Ranges.W == Range{300e-6, 1e-3} }, "lo.w=300u"},
@@ -1044,6 +1054,11 @@ func TestAidKeys(t *testing.T) {
 		{"vary=w.x", "vary", `"x" is not one`},
 		{"vary=w.w", "vary", "given twice"},
 		{"vary=", "vary", `"" is not one`},
+		{"hard=gain", "hard", `"gain" is not one`},
+		{"hard=idd.idd", "hard", "given twice"},
+		{"obj=speed", "obj", "none, power, area, noise"},
+		{"load=active&lo.vout=1&hi.vout=0.9", "hi.vout", "above lo.vout"},
+		{"load=active&hi.vout=2", "hi.vout", "vdd = 1.8"},
 		{"lo.w=1u&hi.w=1u", "hi.w", "above lo.w"},
 		{"lo.rs=0", "lo.rs", "above 0"},
 		{"sw=fmax", "sw", "swept key must be one of"},

@@ -536,7 +536,7 @@ var keyTable = [...]keyDef{
 		func(t *Targets) *float64 { return &t.Margin }),
 	{
 		name: "vary", group: GroupSizing, label: "inputs sizing may move",
-		doc:      "Inputs sizing may move, joined by dots (w.l.id.rd.rs.vin, any subset in any order), or none; those that do not matter for the stage are left alone.",
+		doc:      "Inputs sizing may move, joined by dots (w.l.id.rd.rs.vin.lw.ll.vout, any subset in any order), or none; those that do not matter for the stage are left alone.",
 		readText: readVary, defText: "w.l.id.rd",
 		writeText: func(d *Design) string { return d.Aids.Vary.String() },
 		checkText: func(d *Design) string {
@@ -546,7 +546,7 @@ var keyTable = [...]keyDef{
 			return ""
 		},
 		choices: append(append([]string(nil), varNames...), "none"), separator: ".",
-		accepts:  "any of w, l, id, rd, rs, vin joined by dots, or none",
+		accepts:  "any of w, l, id, rd, rs, vin, lw, ll, vout joined by dots, or none",
 		optional: true,
 	},
 	sizingRange("lo.w", "least width", "m", "Sizing: least channel width of M1, m.", widthBounds, rangeLow(1e-6), widthWhen,
@@ -570,6 +570,9 @@ var keyTable = [...]keyDef{
 		fixedBounds(0, 1e9), rangeLow(10), rsWhen, func(r *Ranges) *Range { return &r.RS }, true),
 	sizingRange("hi.rs", "most source resistor", "Ω", "Sizing: most source resistor, Ω.", fixedBounds(0, 1e9), rangeHigh(100e3), rsWhen,
 		func(r *Ranges) *Range { return &r.RS }, false),
+	// Steering sizing (sizingkeys.go): hard, obj, lo.lw, hi.lw, lo.ll, hi.ll, lo.vout, hi.vout.
+	sizingSteerKeys()[0], sizingSteerKeys()[1], sizingSteerKeys()[2], sizingSteerKeys()[3],
+	sizingSteerKeys()[4], sizingSteerKeys()[5], sizingSteerKeys()[6], sizingSteerKeys()[7],
 	{
 		name: "sw", group: GroupAids, label: "swept key",
 		doc:   "Input key a sweep moves: any number key of the design or a process parameter (n.thresh).",
@@ -962,7 +965,7 @@ func (d Design) KeyRange(key string) (lo, hi float64, log, ok bool) {
 
 // readVary reads the inputs sizing may move.
 func readVary(d *Design, text string) string {
-	const accepted = "inputs sizing may move must be any of w, l, id, rd, rs, vin joined by dots, or none"
+	const accepted = "inputs sizing may move must be any of w, l, id, rd, rs, vin, lw, ll, vout joined by dots, or none"
 	if text == "none" {
 		d.Aids.Vary = 0
 		return ""

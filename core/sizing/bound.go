@@ -137,6 +137,6 @@ func gainBandwidthBound(d *design.Design) string {
 	if ratio <= lim.most {
 		return ""
 	}
-	return fmt.Sprintf("%s; into CL = %s that needs a transconductance ≥ 2π·GBW·CL = %s, which with %s is %.3g S/A — above %.3g S/A, the most a %s stage of this process gives per ampere (%s). No W, L or load meets it: it takes at least %s, or a smaller CL or gain–bandwidth product",
+	return fmt.Sprintf("%s; into CL = %s that needs a transconductance ≥ 2π·GBW·CL = %s, which with %s is %.3g S/A — above %.3g S/A, the most a %s stage of this process gives per ampere (%s), so no W, L or load meets it: it takes at least %s, or a smaller CL or gain–bandwidth product",
 		how, units.Engineering(d.CL, 3, "F"), units.Engineering(gmNeed, 3, "S"), limit, ratio, lim.most, d.Stage, lim.why, units.Engineering(gmNeed/lim.most, 3, "A"))
 }
