@@ -207,7 +207,7 @@ func HeldAt(d design.Design, nominal design.Result, dt design.Design) (design.De
 		if d.Pol == "p" {
 			pol = device.PMOS
 		}
-		vgs, ok := mirrorVGS(pr, pol, dt.W, dt.L, tempK, iref, dt.VDD)
+		vgs, ok := diodeVGS(pol, pr.ParamsAt(pol, dt.L), pr.TNom, dt.W, dt.L, tempK, iref, math.Abs(float64(nominal.OP.VGS)), dt.VDD)
 		if !ok {
 			return dt, fmt.Sprintf("the mirror copy of M1 cannot carry %.3g A within the %.3g V supply", iref, dt.VDD)
 		}
@@ -218,7 +218,7 @@ func HeldAt(d design.Design, nominal design.Result, dt design.Design) (design.De
 		if (d.Pol == "p") != (d.Stage == design.SourceFollower) {
 			pol = device.NMOS
 		}
-		vgs, ok := mirrorVGS(pr, pol, dt.LoadW, dt.LoadL, tempK, iref, dt.VDD)
+		vgs, ok := diodeVGS(pol, pr.ParamsAt(pol, dt.LoadL), pr.TNom, dt.LoadW, dt.LoadL, tempK, iref, dt.LoadVB, dt.VDD)
 		if !ok {
 			return dt, fmt.Sprintf("the mirror copy of the load transistor cannot carry %.3g A within the %.3g V supply", iref, dt.VDD)
 		}
@@ -237,31 +237,6 @@ func clampLevels(d design.Design) (design.Design, string) {
 		return d, fmt.Sprintf("the held load gate drive %.3g V exceeds the %.3g V supply", d.LoadVB, d.VDD)
 	}
 	return d, ""
-}
-
-// mirrorVGS returns |VGS| of a diode-connected transistor of polarity pol
-// and size w × l on pr at tempK carrying i (A), source and bulk on its rail,
-// by bisection on the gate drive over 0 … vmax (its current rises with it).
-func mirrorVGS(pr device.Process, pol device.Polarity, w, l, tempK, i, vmax float64) (float64, bool) {
-	dev, err := device.New(pol, pr.ParamsAt(pol, l), pr.TNom, w, l, tempK)
-	if err != nil || !(i > 0) {
-		return 0, false
-	}
-	s := float64(pol)
-	at := func(v float64) float64 { return math.Abs(dev.Current(s*v, s*v, 0, 0).ID) }
-	if at(vmax) < i {
-		return 0, false
-	}
-	lo, hi := 0.0, vmax
-	for range 60 { // 2^-60 of the supply: far below any figure's resolution
-		m := (lo + hi) / 2
-		if at(m) < i {
-			lo = m
-		} else {
-			hi = m
-		}
-	}
-	return (lo + hi) / 2, true
 }
 
 // withCorner returns a copy of overrides (sorted by key and length) with
