@@ -326,7 +326,7 @@ func main() {
 	}
 
 	// Monte Carlo natively: 10,000 samples of the default design.
-	rows = append(rows, monteCarloRow(root))
+	rows = append(rows, monteCarloRow(root), fitRow(root), fittedRow(root))
 
 	// The browser benchmark's figures.
 	rows = append(rows, browserRows(filepath.Join(root, browserBenchJSON))...)
@@ -378,6 +378,64 @@ func monteCarloRow(root string) row {
 	r.measured = spread(ms, "%.0f ms")
 	r.within = verdict(median(ms) <= budgetMs)
 	return r
+}
+
+// fitRow runs BenchmarkFit10k in core/extract natively: one whole fit of
+// 10,224 points (three runs; the median).
+func fitRow(root string) row {
+	const budgetMs = 2000
+	r := row{"native fit of 10,224 characterization points", fmt.Sprintf("%d ms", budgetMs), "not measured", "—"}
+	out, err := goBench(root, "./core/extract", "BenchmarkFit10k$", "2x")
+	if err != nil {
+		r.measured = "not measured (" + err.Error() + ")"
+		return r
+	}
+	var ms []float64
+	for _, l := range parseBench(out) {
+		ms = append(ms, l.NsPerOp/1e6)
+	}
+	if len(ms) > 0 {
+		r.measured, r.within = spread(ms, "%.0f ms"), verdict(median(ms) <= budgetMs)
+	}
+	return r
+}
+
+// fittedRow compares one evaluation on a fitted process with length bins
+// against the same design on a demo process (BenchmarkEvaluateFitted):
+// the budget is "as fast", read as within 10 %, the run-to-run noise here.
+func fittedRow(root string) row {
+	r := row{"evaluation on a fitted process with bins over a demo one", "1.10×", "not measured", "—"}
+	out, err := goBench(root, "./core/design", "BenchmarkEvaluateFitted", "2000x")
+	if err != nil {
+		r.measured = "not measured (" + err.Error() + ")"
+		return r
+	}
+	var demo, fitted []float64
+	for _, l := range parseBench(out) {
+		switch l.Name {
+		case "BenchmarkEvaluateFitted/demo":
+			demo = append(demo, l.NsPerOp)
+		case "BenchmarkEvaluateFitted/fitted":
+			fitted = append(fitted, l.NsPerOp)
+		}
+	}
+	if len(demo) > 0 && len(fitted) > 0 {
+		ratio := median(fitted) / median(demo)
+		r.measured = fmt.Sprintf("%.2f× (%.1f µs against %.1f µs)", ratio, median(fitted)/1e3, median(demo)/1e3)
+		r.within = verdict(ratio <= 1.10)
+	}
+	return r
+}
+
+// goBench runs one benchmark of a package natively, three times.
+func goBench(root, pkg, pattern, benchtime string) ([]byte, error) {
+	cmd := exec.Command("go", "test", "-run", "XXX", "-bench", pattern, "-benchtime", benchtime, "-count", "3", pkg)
+	cmd.Dir = root
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		return nil, fmt.Errorf("%s", strings.TrimSpace(tail(out, 1)))
+	}
+	return out, nil
 }
 
 func minimum(xs []float64) float64 {

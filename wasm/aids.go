@@ -30,6 +30,7 @@ import (
 //	compare(fragment)         {result: A/B table with pin}          (sweep.ComparePinned)
 //	montecarloStart(fragment) {result: {run, total}}                (variation.MonteCarloWith)
 //	sizeStart(fragment)       {result: {run, total}}                (sizing.Size)
+//	fitStart(csvText, opts)   {result: {run, total}}                (extract.Fit, see fit.go)
 //	step(run)                 {result: {run, done, total, finished, result?}}
 //	cancel(run)               {result: the same, finished, with what was done}
 //
@@ -61,6 +62,7 @@ var aidMethods = map[string]func(method string, args []Arg) Response{
 	"compare":         withDesign(comparePinned),
 	"montecarloStart": withDesign(startMonteCarlo),
 	"sizeStart":       withDesign(startSizing),
+	"fitStart":        startFit, // the file's text and options, see fit.go
 	"step":            withRun(func(j *job) Response { return j.step(true) }),
 	"cancel":          withRun(func(j *job) Response { return j.step(false) }),
 }
@@ -120,6 +122,9 @@ func withDesign(f func(d design.Design) Response) func(string, []Arg) Response {
 // analysisError is the response of an aid that failed; the key comes from
 // the core's error when it names one.
 func analysisError(err error) Response {
+	if info, ok := fitErrorInfo(err); ok {
+		return Response{Error: info}
+	}
 	info := &ErrorInfo{Code: CodeAnalysis, Message: err.Error()}
 	var te *transfer.Error
 	if errors.As(err, &te) {
@@ -358,6 +363,10 @@ func jobDone(kind string, v any) int {
 		if kind == "size" {
 			return r.Evaluations
 		}
+	case fitAnswer:
+		if kind == "fit" {
+			return r.res.Iterations
+		}
 	}
 	return -1
 }
@@ -369,7 +378,7 @@ func jobDone(kind string, v any) int {
 //go:noinline
 func withRun(f func(j *job) Response) func(string, []Arg) Response {
 	return func(method string, args []Arg) Response {
-		id, bad := oneString(method, "run name from montecarloStart or sizeStart", args)
+		id, bad := oneString(method, "run name from montecarloStart, sizeStart or fitStart", args)
 		if bad != nil {
 			return *bad
 		}

@@ -40,3 +40,23 @@ func TestGlueAids(t *testing.T) {
 		t.Errorf("%d samples, want 300", samples)
 	}
 }
+
+// fitStart takes two strings; through the glue, a bad file comes back as
+// an error object naming the line and the column.
+func TestGlueFitBadFile(t *testing.T) {
+	ns := namespace(t)
+	resp, err := ns.Call("fitStart", "vgs,vds,id\n0.1,0.2,zz\n", "pol=n&w=1u&l=1u")
+	if err != nil {
+		t.Fatal(err)
+	}
+	run, _ := field(t, resp, "result", "run").String()
+	resp, err = ns.Call("step", run)
+	if err != nil {
+		t.Fatal(err)
+	}
+	code, _ := field(t, resp, "error", "code").String()
+	msg, _ := field(t, resp, "error", "message").String()
+	if code != CodeData || msg[:len("line 2, column 3")] != "line 2, column 3" {
+		t.Errorf("bad file through the glue: code %q, message %q", code, msg)
+	}
+}

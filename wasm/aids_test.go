@@ -32,7 +32,7 @@ func mustResult(t *testing.T, method string, d decoded, into any) {
 
 func TestAidMethodsAreRegistered(t *testing.T) {
 	names := aidMethodNames()
-	for _, want := range []string{"transfer", "distortion", "corners", "charts", "sweep", "compare", "montecarloStart", "sizeStart", "step", "cancel"} {
+	for _, want := range []string{"transfer", "distortion", "corners", "charts", "sweep", "compare", "montecarloStart", "sizeStart", "fitStart", "step", "cancel"} {
 		found := false
 		for _, n := range names {
 			found = found || n == want
@@ -140,17 +140,20 @@ func TestCornersTable(t *testing.T) {
 	var rows []struct {
 		Corner string
 		Temp   float64
+		VDD    float64
 		OK     bool
 		Gain   *float64
 	}
-	mustResult(t, "corners", aidCall(t, "corners", aidBase), &rows)
-	// Five corners at −40, 27 and 125 °C (the design's own 27 °C is one of them).
-	if len(rows) != 15 {
-		t.Fatalf("%d rows, want 15", len(rows))
+	frag := aidBase + "&hold=ideal"
+	mustResult(t, "corners", aidCall(t, "corners", frag), &rows)
+	// Five corners at −40, 27 and 125 °C (the design's own 27 °C is one of
+	// them), each at the supply and ±10 %.
+	if len(rows) != 45 {
+		t.Fatalf("%d rows, want 45", len(rows))
 	}
-	r := new(design.Evaluator).EvaluateFragment(aidBase)
+	r := new(design.Evaluator).EvaluateFragment(frag)
 	for _, row := range rows {
-		if row.Corner == "tt" && row.Temp == 27 {
+		if row.Corner == "tt" && row.Temp == 27 && row.VDD == float64(r.Nodes["vdd"]) {
 			// The tt row at the design's temperature is the design itself (same solver: 1e-9).
 			if row.Gain == nil || math.Abs(*row.Gain-float64(r.Midband.Gain)) > 1e-9*math.Abs(float64(r.Midband.Gain)) {
 				t.Errorf("tt 27 °C gain %v, design %g", row.Gain, r.Midband.Gain)

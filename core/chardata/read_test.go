@@ -58,8 +58,8 @@ func TestReadGoodFiles(t *testing.T) {
 			if !math.IsNaN(p.GM) || tab.HasGM {
 				t.Errorf("gm is %v (HasGM %v) without a gm column", p.GM, tab.HasGM)
 			}
-			if len(tab.Fingerprint) != 64 {
-				t.Errorf("fingerprint %q is not SHA-256 hex", tab.Fingerprint)
+			if len(tab.Fingerprint) != len("fnv1a64:")+16 || tab.Fingerprint != Fingerprint([]byte(tc.text)) {
+				t.Errorf("fingerprint %q", tab.Fingerprint)
 			}
 		})
 	}
@@ -223,6 +223,17 @@ func BenchmarkRead10k(b *testing.B) {
 	for b.Loop() {
 		if _, err := Read(data, Options{Pol: device.NMOS, W: 10e-6}); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// The fingerprint is FNV-1a 64 (Fowler, Noll, Vo): its published test
+// vectors are 0xcbf29ce484222325 for no bytes (the offset basis) and
+// 0xaf63dc4c8601ec8c for "a".
+func TestFingerprintVectors(t *testing.T) {
+	for in, want := range map[string]string{"": "fnv1a64:cbf29ce484222325", "a": "fnv1a64:af63dc4c8601ec8c"} {
+		if got := Fingerprint([]byte(in)); got != want {
+			t.Errorf("Fingerprint(%q) = %s, want %s", in, got, want)
 		}
 	}
 }

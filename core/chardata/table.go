@@ -27,8 +27,8 @@ type Table struct {
 	// Which optional columns the file had.
 	HasGM, HasGDS, HasCGG bool
 
-	// Fingerprint is the SHA-256 of the file's bytes, in lower-case hex:
-	// a process fitted to the table records it, so that the source data of
-	// a fit can be recognised later.
+	// Fingerprint identifies the file's bytes (see the function
+	// Fingerprint): a process fitted to the table records it, so that the
+	// source data of a fit can be recognised later.
 	Fingerprint string
 }

@@ -56,9 +56,9 @@ func Compute(pr device.Process, pol device.Polarity, w, l, tempK, vdd float64, p
 	if !(vdd > 0) || math.IsInf(vdd, 0) {
 		return Chart{}, fmt.Errorf("charts: supply %g V; it must be above 0", vdd)
 	}
-	prm, name := pr.N, "n"
+	prm, name := pr.ParamsAt(device.NMOS, l), "n"
 	if pol == device.PMOS {
-		prm, name = pr.P, "p"
+		prm, name = pr.ParamsAt(device.PMOS, l), "p"
 	}
 	dev, err := device.New(pol, prm, pr.TNom, w, l, tempK)
 	if err != nil {

@@ -117,6 +117,8 @@ type circuitStore struct {
 }
 
 // AddNode adds a named node and returns it.
+//
+//go:noinline
 func (c *Circuit) AddNode(name string) Node {
 	c.names = append(c.names, name)
 	return Node(len(c.names) - 1)
@@ -144,36 +146,48 @@ func (c *Circuit) NodeByName(name string) (Node, bool) {
 }
 
 // AddResistor appends a resistor and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddResistor(name string, a, b Node, r float64) int {
 	c.Resistors = append(c.Resistors, Resistor{Name: name, A: a, B: b, R: r})
 	return len(c.Resistors) - 1
 }
 
 // AddVSource appends a voltage source and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddVSource(name string, p, n Node, v float64) int {
 	c.VSources = append(c.VSources, VSource{Name: name, P: p, N: n, V: v})
 	return len(c.VSources) - 1
 }
 
 // AddISource appends a current source and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddISource(name string, a, b Node, i float64) int {
 	c.ISources = append(c.ISources, ISource{Name: name, A: a, B: b, I: i})
 	return len(c.ISources) - 1
 }
 
 // AddCapacitor appends a capacitor and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddCapacitor(name string, a, b Node, f float64) int {
 	c.Caps = append(c.Caps, Capacitor{Name: name, A: a, B: b, C: f})
 	return len(c.Caps) - 1
 }
 
 // AddFET appends a MOSFET and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddFET(name string, d, g, s, b Node, dev *device.Device) int {
 	c.FETs = append(c.FETs, FET{Name: name, D: d, G: g, S: s, B: b, Dev: dev})
 	return len(c.FETs) - 1
 }
 
 // AddServo appends a servo and returns its index.
+//
+//go:noinline
 func (c *Circuit) AddServo(s Servo) int {
 	c.Servos = append(c.Servos, s)
 	return len(c.Servos) - 1

@@ -89,3 +89,35 @@ func BenchmarkEvaluatePhases(b *testing.B) {
 		})
 	}
 }
+
+// fittedDesign is a design on a fitted process: every fitted parameter as
+// an override and four length bins, as a link from the fit carries them
+// (values of the same order as the demo fit's).
+const fittedDesign = "stage=cs&load=active&l=350n&ll=1u&fmin=10&fmax=100G&ppd=40" +
+	"&n.body=1.08&n.dibl=6.2n&n.lenmod=1n&n.mobility=43m&n.mobred=450m&n.surface=1.5&n.thresh=498m&n.velsat=10.2M" +
+	"&n.thresh@180n=490m&n.dibl@180n=5.6n&n.mobility@180n=42.7m&n.thresh@350n=498m&n.dibl@350n=5.5n" +
+	"&n.thresh@1u=501m&n.dibl@1u=5.9n&n.thresh@4u=499m&n.dibl@4u=1p" +
+	"&p.thresh@180n=462m&p.thresh@1u=469m&p.lenmod@180n=50n"
+
+// BenchmarkEvaluateFitted is BenchmarkEvaluate's cs stage with an active
+// load on a fitted process with length bins beside the same design on the
+// demo process: the bins are interpolated once per device when the stage
+// is built, so the two should cost the same.
+func BenchmarkEvaluateFitted(b *testing.B) {
+	for _, c := range []struct{ name, frag string }{
+		{"demo", "stage=cs&load=active&l=350n&ll=1u&fmin=10&fmax=100G&ppd=40"},
+		{"fitted", fittedDesign},
+	} {
+		d := mustDecode(b, c.frag)
+		b.Run(c.name, func(b *testing.B) {
+			var e Evaluator
+			e.Evaluate(d)
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				if r := e.Evaluate(d); !r.OK {
+					b.Fatal(r.Error)
+				}
+			}
+		})
+	}
+}

@@ -28,9 +28,14 @@ const (
 	BiasGmID BiasMode = "gmid" // gm/ID and the drain current are given; the engine finds W at the given L
 )
 
-// Override replaces one process parameter of one polarity, e.g. Key "n.vt0".
+// Override replaces one process parameter of one polarity, e.g. Key
+// "n.thresh". With L = 0 it applies at every length; with L > 0 it belongs
+// to the parameter set fitted at that length (a length bin, written
+// "n.thresh@180n" in a fragment), and a polarity with any such override
+// has bins (see device.Process.ParamsAt).
 type Override struct {
 	Key   string
+	L     float64 // m, the bin's length; 0 = every length
 	Value float64
 }
 
@@ -81,6 +86,8 @@ type Design struct {
 // Ranges, a sweep of one input key, and a pinned reference design.
 type Aids struct {
 	Corner string  // process corner: tt, ss, ff, sf, fs (first letter NMOS, second PMOS)
+	VDDTol float64 // the corner table's supply spread, a fraction of VDD
+	Hold   string  // what holds an id or gmid bias at the corners and in Monte Carlo: mirror, fixed, ideal
 	Amp    float64 // V, amplitude of the input sine for distortion
 	MC     int     // Monte Carlo samples, 0 … 10000
 	Seed   int     // seed of every random draw
@@ -88,6 +95,11 @@ type Aids struct {
 	Targets Targets
 	Vary    VarSet // the inputs sizing may move
 	Ranges  Ranges // where sizing may move them
+	// Hard are the at-most targets sizing never lets even its best
+	// compromise exceed; Objective what it minimises once every target is
+	// met (ObjNone: it stops at the first design that meets them).
+	Hard      HardSet
+	Objective Objective
 
 	Sweep SweepSpec
 
@@ -114,6 +126,8 @@ type Range struct{ Lo, Hi float64 }
 // Ranges bound the inputs sizing may move (vin moves over 0 … vdd).
 type Ranges struct {
 	W, L, ID, RD, RS Range // m, m, A, Ω, Ω
+	LW, LL           Range // m, m: the load transistor's width and length
+	VOut             Range // V, the output level of a current-source load
 }
 
 // SweepSpec says which input key a sweep moves, from Lo to Hi (in the key's
@@ -124,22 +138,25 @@ type SweepSpec struct {
 	N      int
 }
 
-// VarSet is a set of inputs sizing may move: the bits of VarW … VarVin.
-type VarSet uint8
+// VarSet is a set of inputs sizing may move: the bits of VarW … VarVOut.
+type VarSet uint16
 
 // The inputs sizing may move, in their canonical order.
 const (
-	VarW   VarSet = 1 << iota // width of M1 (key w)
-	VarL                      // length of M1 (key l)
-	VarID                     // drain current (key id)
-	VarRD                     // drain resistor (key rd)
-	VarRS                     // source resistor (key rs)
-	VarVin                    // input DC level (key vin)
-	varAll = VarW | VarL | VarID | VarRD | VarRS | VarVin
+	VarW    VarSet = 1 << iota // width of M1 (key w)
+	VarL                       // length of M1 (key l)
+	VarID                      // drain current (key id)
+	VarRD                      // drain resistor (key rd)
+	VarRS                      // source resistor (key rs)
+	VarVin                     // input DC level (key vin)
+	VarLW                      // width of the load transistor (key lw)
+	VarLL                      // length of the load transistor (key ll)
+	VarVOut                    // output level of a current-source load (key vout)
+	varAll  = VarW | VarL | VarID | VarRD | VarRS | VarVin | VarLW | VarLL | VarVOut
 )
 
-// varNames are the keys of VarW … VarVin in bit order.
-var varNames = []string{"w", "l", "id", "rd", "rs", "vin"}
+// varNames are the keys of VarW … VarVOut in bit order.
+var varNames = []string{"w", "l", "id", "rd", "rs", "vin", "lw", "ll", "vout"}
 
 // VarNames returns the keys sizing may move, in canonical order.
 func VarNames() []string { return append([]string(nil), varNames...) }

@@ -201,6 +201,12 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 		res.Dominant = &dom
 	}
 	res.Estimate = estimates(spec, nw, m1, mb, poles, zeros, res.AC)
+
+	// Large signal.
+	res.Large = &LargeSignal{}
+	if sl, ok := sol.Slew(spec.CL); ok {
+		res.Large.Slew = &SlewRate{Up: Num(sl.Up), Down: Num(sl.Down), IUp: Num(sl.IUp), IDown: Num(sl.IDown)}
+	}
 	res.OK = true
 	return res
 }

@@ -42,7 +42,7 @@ func ExampleDesign_Encode() {
 	d.RSig = 50
 	fmt.Println(d.Encode())
 	// Output:
-	// v=1&stage=cg&pol=n&proc=d180&vdd=1.8&temp=27&w=10u&l=500n&bias=id&id=100u&vin=700m&vg=1.1&load=r&rd=10k&rsig=50&rl=inf&cl=100f&fmin=1&fmax=100G&ppd=40&nlo=1&nhi=100M
+	// v=2&stage=cg&pol=n&proc=d180&vdd=1.8&temp=27&w=10u&l=500n&bias=id&id=100u&vin=700m&vg=1.1&load=r&rd=10k&rsig=50&rl=inf&cl=100f&fmin=1&fmax=100G&ppd=40&nlo=1&nhi=100M
 }
 
 func ExampleSchema() {

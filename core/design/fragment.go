@@ -1,6 +1,7 @@
 package design
 
 import (
+	"cmp"
 	"errors"
 	"math"
 	"slices"
@@ -28,7 +29,9 @@ type givenValue struct {
 
 // givenOverride is the text a fragment gave for one override key.
 type givenOverride struct {
-	key, text string
+	key, text string  // key as given
+	canon     string  // key by its current name, without the length suffix
+	l         float64 // m, the bin's length; 0 = every length
 	pos       int
 	value     float64
 	ok        bool // value was read and is in range
@@ -116,16 +119,31 @@ func Decode(fragment string) (Design, error) {
 			}
 			if bad {
 				report(pos, key, value, valueProblem)
+			} else if key == "sw" {
+				value = CanonicalKey(value) // a sweep of "n.vt0" in an older link moves n.thresh
 			}
 			given[i] = givenValue{text: value, pos: pos, present: true, bad: bad}
 			continue
 		}
-		if f, _, ok := lookupOverride(key); ok {
-			if j := slices.IndexFunc(overrides, func(o givenOverride) bool { return o.key == key }); j >= 0 {
-				report(pos, key, value, "repeated key: the first value ("+overrides[j].text+") is kept")
+		base, lText, binned := strings.Cut(key, "@")
+		if f, ref, ok := lookupOverride(base); ok {
+			o := givenOverride{key: key, canon: ref.key(), text: value, pos: pos}
+			if binned && f.spread != nil {
+				report(pos, key, value, base+" is a figure of the whole process's spread: it takes no length (write "+base+"=…)")
 				continue
 			}
-			o := givenOverride{key: key, text: value, pos: pos}
+			if binned {
+				l, err := units.Parse(lText)
+				if err != nil || !(l > 0) || math.IsInf(l, 0) {
+					report(pos, key, value, "the length after @ must be a channel length in m, such as "+base+"@180n")
+					continue
+				}
+				o.l = l
+			}
+			if j := slices.IndexFunc(overrides, func(g givenOverride) bool { return g.canon == o.canon && g.l == o.l }); j >= 0 {
+				report(pos, key, value, "repeated key: the first value ("+overrides[j].key+"="+overrides[j].text+") is kept")
+				continue
+			}
 			if bad {
 				report(pos, key, value, valueProblem)
 			} else {
@@ -145,18 +163,22 @@ func Decode(fragment string) (Design, error) {
 	d, resolveProblems := resolve(&given)
 	problems = append(problems, resolveProblems...)
 
+	pr := lookupProcess(d.Process)
 	for _, o := range overrides {
+		if o.ok && o.l != 0 && !(o.l >= pr.LMin && o.l <= pr.LMax) {
+			report(o.pos, o.key, o.text, binLengthMessage(pr, o.l))
+			o.ok = false
+		}
 		if o.ok {
-			d.Overrides = append(d.Overrides, Override{Key: o.key, Value: o.value})
+			d.Overrides = append(d.Overrides, Override{Key: o.canon, L: o.l, Value: o.value})
 		}
 	}
 	slices.SortFunc(d.Overrides, compareOverrides)
-	pr := lookupProcess(d.Process)
 	for _, pol := range [...]byte{'n', 'p'} {
 		if key, msg := dopingProblem(pr, d.Overrides, pol); key != "" {
-			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key })
-			g := overrides[slices.IndexFunc(overrides, func(o givenOverride) bool { return o.key == key })]
-			report(g.pos, key, g.text, msg)
+			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key && o.L == 0 })
+			g := overrides[slices.IndexFunc(overrides, func(o givenOverride) bool { return o.canon == key && o.l == 0 })]
+			report(g.pos, g.key, g.text, msg)
 			d.Overrides = slices.Delete(d.Overrides, j, j+1)
 		}
 	}
@@ -404,6 +426,14 @@ func nearestKey(key string) string {
 	for _, k := range overrideKeys {
 		try(k)
 	}
+	for _, pol := range [...]string{"n.", "p."} { // old names, suggested by their new ones
+		for i := range overrideParams {
+			f := &overrideParams[i]
+			if d := editDistance(key, pol+f.old, bestDist); f.old != "" && d < bestDist {
+				best, bestDist = pol+f.name, d
+			}
+		}
+	}
 	return best
 }
 
@@ -439,7 +469,8 @@ func editDistance(a, b string, limit int) int {
 // temp w l bias id gmid vin vg vout load rd rs lw ll vbl rsig rl cl fmin
 // fmax ppd nlo nhi, then the design aids corner amp mc seed t.gain t.f3db
 // t.gbw t.idd t.power t.swing t.noise t.margin vary lo.w hi.w lo.l hi.l
-// lo.id hi.id lo.rd hi.rd lo.rs hi.rs sw sw.lo sw.hi sw.n pin), then the
+// lo.id hi.id lo.rd hi.rd lo.rs hi.rs hard obj lo.lw hi.lw lo.ll hi.ll lo.vout
+// hi.vout sw sw.lo sw.hi sw.n pin), then the
 // overrides sorted by key. Every key of the design itself that matters for
 // the stage, load and bias mode is written, even at its default, so a link
 // keeps its meaning if a default changes later; any other key, and every
@@ -500,12 +531,41 @@ func (d *Design) appendFragment(b []byte) []byte {
 	}
 	for _, o := range overrides {
 		pair(o.Key)
+		if o.L != 0 {
+			b = b[:len(b)-1] // the '=' pair wrote
+			b = append(b, '@')
+			b = units.AppendExact(b, o.L)
+			b = append(b, '=')
+		}
 		b = units.AppendExact(b, o.Value)
 	}
 	return b
 }
 
-func compareOverrides(a, b Override) int { return strings.Compare(a.Key, b.Key) }
+// compareOverrides orders overrides by key, then by bin length (every
+// length, 0, first).
+func compareOverrides(a, b Override) int {
+	if c := strings.Compare(a.Key, b.Key); c != 0 {
+		return c
+	}
+	return cmp.Compare(a.L, b.L)
+}
+
+// binLengthMessage says that a bin length lies outside the process's
+// lengths.
+func binLengthMessage(pr *device.Process, l float64) string {
+	return "the bin length " + units.Exact(l) + " m is outside " + pr.Name + "'s channel lengths " +
+		units.Exact(pr.LMin) + " … " + units.Exact(pr.LMax) + " m"
+}
+
+// overrideName writes an override's key as a fragment does: "n.thresh",
+// or "n.thresh@180n" for a bin.
+func overrideName(o Override) string {
+	if o.L == 0 {
+		return o.Key
+	}
+	return o.Key + "@" + units.Exact(o.L)
+}
 
 func appendNumber(b []byte, v float64, integer, infOK bool) []byte {
 	switch {
@@ -547,24 +607,35 @@ func (d Design) Validate() error {
 			pr = lookupProcess(d.Process)
 		}
 	}
+	pr = lookupProcess(d.Process)
 	for i, o := range d.Overrides {
-		text := units.Exact(o.Value)
-		f, _, ok := lookupOverride(o.Key)
+		// The key and value are written out only for a problem: this loop
+		// runs on every evaluation.
+		problem := func(msg string) {
+			problems = append(problems, Problem{overrideName(o), units.Exact(o.Value), msg})
+		}
+		f, ref, ok := lookupOverride(o.Key)
 		switch {
 		case !ok:
-			problems = append(problems, Problem{o.Key, text, unknownKeyMessage(o.Key, "unknown process parameter")})
+			problem(unknownKeyMessage(o.Key, "unknown process parameter"))
+		case ref.key() != o.Key:
+			problem("write the parameter by its current name, " + ref.key())
 		case !numberOK(o.Value, f.span(), false, false):
-			problems = append(problems, Problem{o.Key, text, rangeMessage(f.span(), false, false, f.label, f.unit, f.zeroMeans)})
+			problem(rangeMessage(f.span(), false, false, f.label, f.unit, f.zeroMeans))
 		}
-		if i > 0 && d.Overrides[i-1].Key >= o.Key {
-			problems = append(problems, Problem{o.Key, text, "overrides must be sorted by key, each key once (after " +
-				strconv.Quote(d.Overrides[i-1].Key) + ")"})
+		if o.L != 0 && !(o.L >= pr.LMin && o.L <= pr.LMax) {
+			problem(binLengthMessage(pr, o.L))
+		}
+		if o.L != 0 && ok && f.spread != nil {
+			problem("a figure of the whole process's spread takes no length")
+		}
+		if i > 0 && compareOverrides(d.Overrides[i-1], o) >= 0 {
+			problem("overrides must be sorted by key and length, each once (after " + strconv.Quote(overrideName(d.Overrides[i-1])) + ")")
 		}
 	}
-	pr = lookupProcess(d.Process)
 	for _, pol := range [...]byte{'n', 'p'} {
 		if key, msg := dopingProblem(pr, d.Overrides, pol); key != "" {
-			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key })
+			j := slices.IndexFunc(d.Overrides, func(o Override) bool { return o.Key == key && o.L == 0 })
 			problems = append(problems, Problem{key, units.Exact(d.Overrides[j].Value), msg})
 		}
 	}
@@ -580,13 +651,16 @@ func (d Design) Validate() error {
 // blame (phi when it is overridden, else nsub) and the message, or "" when
 // the rule holds or no override of pol takes part.
 func dopingProblem(pr *device.Process, overrides []Override, pol byte) (key, message string) {
-	phiKey, nsubKey, params := "n.phi", "n.nsub", &pr.N
+	phiKey, nsubKey, params := "n.surface", "n.doping", &pr.N
 	if pol == 'p' {
-		phiKey, nsubKey, params = "p.phi", "p.nsub", &pr.P
+		phiKey, nsubKey, params = "p.surface", "p.doping", &pr.P
 	}
 	phi, nsub := params.Phi, params.NSub
 	phiSet, nsubSet := false, false
 	for _, o := range overrides {
+		if o.L != 0 {
+			continue // a bin's sets are checked whole by ProcessOf
+		}
 		switch o.Key {
 		case phiKey:
 			phi, phiSet = o.Value, true

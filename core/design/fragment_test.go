@@ -33,8 +33,9 @@ func keyValue(d Design, key string) float64 {
 	if i, ok := keyIndex[key]; ok && !keyTable[i].isWord() && !keyTable[i].isText() {
 		return keyTable[i].get(&d)
 	}
+	key = CanonicalKey(key) // an old name reads the parameter it names
 	for _, o := range d.Overrides {
-		if o.Key == key {
+		if o.Key == key && o.L == 0 {
 			return o.Value
 		}
 	}
@@ -103,9 +104,9 @@ func TestDefaults(t *testing.T) {
 		if d.VDD != pr.VDD {
 			t.Errorf("Default(%q).VDD = %g, want the process supply %g", name, d.VDD, pr.VDD)
 		}
-		if d.Process != name || d.Version != 1 || d.Stage != CommonSource || d.Pol != "n" ||
+		if d.Process != name || d.Version != 2 || d.Stage != CommonSource || d.Pol != "n" ||
 			d.Bias != BiasID || d.Load != LoadResistor || d.Overrides != nil {
-			t.Errorf("Default(%q) words = %+v, want v1 cs n id r and no overrides", name, d)
+			t.Errorf("Default(%q) words = %+v, want v2 cs n id r and no overrides", name, d)
 		}
 		if err := d.Validate(); err != nil {
 			t.Errorf("Default(%q) fails Validate: %v", name, err)
@@ -191,7 +192,7 @@ func TestDecodeGood(t *testing.T) {
 	if d.Stage != CommonGate || d.Pol != "p" || d.Bias != BiasGmID || d.Load != LoadActive || d.Process != "d65" {
 		t.Errorf("words not applied: %+v", d)
 	}
-	wantOv := []Override{{"n.u0", 20e-3}, {"p.u0", 10e-3}}
+	wantOv := []Override{{Key: "n.mobility", Value: 20e-3}, {Key: "p.mobility", Value: 10e-3}} // old names read as the new
 	if !reflect.DeepEqual(d.Overrides, wantOv) {
 		t.Errorf("overrides = %v, want %v sorted by key", d.Overrides, wantOv)
 	}
@@ -216,11 +217,16 @@ func TestDecodeProblems(t *testing.T) {
 		want     string // that value, e-notation
 	}{
 		{"unknown, near", "rsign=1k", "rsign", "1k", `unknown key (did you mean "rsig"?)`, "", ""},
-		{"unknown override", "n.vto=0.4", "n.vto", "0.4", `did you mean "n.vt0"?`, "", ""},
+		{"unknown override", "n.vto=0.4", "n.vto", "0.4", `did you mean "n.thresh"?`, "", ""}, // near an old name: its new one
+		{"unknown new name", "n.thres=0.4", "n.thres", "0.4", `did you mean "n.thresh"?`, "", ""},
+		{"old and new name", "n.vt0=0.5&n.thresh=0.6", "n.thresh", "0.6", "first value (n.vt0=0.5) is kept", "n.thresh", "0.5"},
+		{"bad bin length", "n.thresh@x=0.4", "n.thresh@x", "0.4", "length after @ must be a channel length", "", ""},
+		{"bin length out", "n.thresh@50n=0.4", "n.thresh@50n", "0.4", "outside d180's channel lengths", "", ""},
+		{"repeated bin", "n.thresh@1u=0.4&n.vt0@1000n=0.5", "n.vt0@1000n", "0.5", "first value (n.thresh@1u=0.4) is kept", "", ""},
 		{"upper case", "W=1u", "W", "1u", `keys are lower case (did you mean "w"?)`, "w", "10e-6"},
 		{"unknown, far", "zzzzzz=1", "zzzzzz", "1", "unknown key", "", ""},
 		{"repeated", "w=20u&w=30u", "w", "30u", "repeated key: the first value (20u) is kept", "w", "20e-6"},
-		{"repeated override", "n.vt0=0.5&n.vt0=0.6", "n.vt0", "0.6", "first value (0.5) is kept", "n.vt0", "0.5"},
+		{"repeated override", "n.vt0=0.5&n.vt0=0.6", "n.vt0", "0.6", "first value (n.vt0=0.5) is kept", "n.vt0", "0.5"},
 		{"empty key", "=5", "", "5", "empty key", "", ""},
 		{"missing =", "w", "w", "", "missing '='", "w", "10e-6"},
 		{"bad number", "w=4.7kk", "w", "4.7kk", numReason("4.7kk") + "; width must be between 220n and 1m (m)", "w", "10e-6"},
@@ -233,7 +239,7 @@ func TestDecodeProblems(t *testing.T) {
 		{"wrong word", "stage=ce", "stage", "ce", "stage must be one of cs, cg, sf", "", ""},
 		{"wrong bias", "bias=vgs", "bias", "vgs", "bias mode must be one of vin, id, gmid", "", ""},
 		{"wrong process", "proc=d90", "proc", "d90", "process must be one of d180, d65", "l", "0.5e-6"},
-		{"version", "v=2", "v", "2", "this build reads fragment version 1", "", ""},
+		{"version", "v=3", "v", "3", "this build reads fragment versions 1 and 2", "", ""},
 		{"diode for sf", "stage=sf&load=diode", "load", "diode", "a source follower cannot take a diode load", "", ""},
 		{"sf needs rs", "stage=sf&rs=0", "rs", "0", "source resistor must be above 0 and at most 1G (Ω)", "rs", "5e3"},
 		{"fmin = fmax", "fmin=1k&fmax=1k", "fmax", "1k", "sweep stop must be above fmin = 1k and at most 1e12 (Hz)", "fmax", "100e9"},
@@ -251,7 +257,7 @@ func TestDecodeProblems(t *testing.T) {
 		{"long value", "w=" + strings.Repeat("1", 65), "w", strings.Repeat("1", 65), "at most 64", "w", "10e-6"},
 		{"override range", "n.tox=0.1n", "n.tox", "0.1n", "oxide thickness must be between 500p and 100n (m)", "", ""},
 		{"override zero-or-range", "n.ecrit=1k", "n.ecrit", "1k", "critical field must be 0 (off) or between 100k and 10G (V/m)", "", ""},
-		{"phi without doping", "n.phi=0", "n.phi", "0", "n.nsub must be given too", "", ""},
+		{"phi without doping", "n.phi=0", "n.phi", "0", "n.doping must be given too", "", ""},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -380,7 +386,7 @@ func TestDecodeOrderDoesNotMatter(t *testing.T) {
 func TestEncode(t *testing.T) {
 	// The canonical form of the defaults: the documented key order, every
 	// key relevant to cs / r / id written.
-	want := "v=1&stage=cs&pol=n&proc=d180&vdd=1.8&temp=27&w=10u&l=500n&bias=id&id=100u&load=r&rd=10k&rs=0" +
+	want := "v=2&stage=cs&pol=n&proc=d180&vdd=1.8&temp=27&w=10u&l=500n&bias=id&id=100u&load=r&rd=10k&rs=0" +
 		"&rsig=1k&rl=inf&cl=100f&fmin=1&fmax=100G&ppd=40&nlo=1&nhi=100M"
 	if got := Default("").Encode(); got != want {
 		t.Errorf("Default.Encode() =\n %s\nwant\n %s", got, want)
@@ -399,7 +405,8 @@ func TestEncode(t *testing.T) {
 		// An irrelevant key is written when it is not at its default.
 		{"load=active&rd=22k", []string{"&rd=22k&"}, nil},
 		{"stage=cg&rs=47", []string{"&rs=47&"}, nil},
-		{"n.vt0=0.5&p.kf=1e-26", []string{"&n.vt0=500m&p.kf=1e-26&"}, nil},
+		{"n.vt0=0.5&p.kf=1e-26", []string{"&n.thresh=500m&p.flicker=1e-26&"}, nil}, // old names written by the new
+		{"n.thresh@1u=0.5&n.thresh=0.4&n.lenmod@180n=40n", []string{"&n.lenmod@180n=40n&n.thresh=400m&n.thresh@1u=500m&"}, nil},
 	}
 	for _, tt := range tests {
 		d, err := Decode(tt.fragment)
@@ -420,11 +427,11 @@ func TestEncode(t *testing.T) {
 	}
 	// Overrides out of order are written sorted.
 	d := Default("")
-	d.Overrides = []Override{{"p.vt0", 0.3}, {"n.vt0", 0.4}}
-	if got := d.Encode(); !strings.HasSuffix(got, "&n.vt0=400m&p.vt0=300m") {
-		t.Errorf("Encode with unsorted overrides = %q, want them sorted", got)
+	d.Overrides = []Override{{Key: "p.thresh", Value: 0.3}, {Key: "n.thresh", L: 500e-9, Value: 0.42}, {Key: "n.thresh", Value: 0.4}}
+	if got := d.Encode(); !strings.HasSuffix(got, "&n.thresh=400m&n.thresh@500n=420m&p.thresh=300m") {
+		t.Errorf("Encode with unsorted overrides = %q, want them sorted by key, then length", got)
 	}
-	if d.Overrides[0].Key != "p.vt0" {
+	if d.Overrides[0].Key != "p.thresh" {
 		t.Errorf("Encode reordered the caller's overrides")
 	}
 }
@@ -466,17 +473,23 @@ func TestValidate(t *testing.T) {
 		{"vin above vdd", func(d *Design) { d.Vin = 2 }, "vin", "2", "between 0 and vdd = 1.8 (V)"},
 		{"stage", func(d *Design) { d.Stage = "xx" }, "stage", "xx", "stage must be one of cs, cg, sf"},
 		{"zero value stage", func(d *Design) { d.Stage = "" }, "stage", "", "stage must be one of"},
-		{"version", func(d *Design) { d.Version = 2 }, "v", "2", "this build reads fragment version 1"},
+		{"version", func(d *Design) { d.Version = 3 }, "v", "3", "this build reads fragment versions 1 and 2"},
 		{"process", func(d *Design) { d.Process = "x" }, "proc", "x", "process must be one of d180, d65"},
 		{"ppd", func(d *Design) { d.PPD = 0 }, "ppd", "0", "whole number between 1 and 200"},
 		{"diode for sf", func(d *Design) { d.Stage, d.Load = SourceFollower, LoadDiode }, "load", "diode", "source follower"},
 		{"sf rs", func(d *Design) { d.Stage, d.RS = SourceFollower, 0 }, "rs", "0", "above 0"},
-		{"unknown override", func(d *Design) { d.Overrides = []Override{{"n.vto", 0.4}} }, "n.vto", "400m", `did you mean "n.vt0"?`},
-		{"override range", func(d *Design) { d.Overrides = []Override{{"p.u0", 1}} }, "p.u0", "1", "low-field mobility must be between 100u and 200m"},
-		{"override NaN", func(d *Design) { d.Overrides = []Override{{"p.u0", math.NaN()}} }, "p.u0", "NaN", "between"},
-		{"overrides unsorted", func(d *Design) { d.Overrides = []Override{{"p.u0", 0.01}, {"n.u0", 0.01}} }, "n.u0", "10m", "sorted by key"},
-		{"override twice", func(d *Design) { d.Overrides = []Override{{"n.u0", 0.01}, {"n.u0", 0.02}} }, "n.u0", "20m", "each key once"},
-		{"phi without doping", func(d *Design) { d.Overrides = []Override{{"p.phi", 0}} }, "p.phi", "0", "p.nsub must be given"},
+		{"unknown override", func(d *Design) { d.Overrides = []Override{{Key: "n.thres", Value: 0.4}} }, "n.thres", "400m", `did you mean "n.thresh"?`},
+		{"old name", func(d *Design) { d.Overrides = []Override{{Key: "n.vt0", Value: 0.4}} }, "n.vt0", "400m", "by its current name, n.thresh"},
+		{"bin length", func(d *Design) { d.Overrides = []Override{{Key: "n.thresh", L: 50e-9, Value: 0.4}} }, "n.thresh@50n", "400m", "outside d180's channel lengths 180n … 20u m"},
+		{"override range", func(d *Design) { d.Overrides = []Override{{Key: "p.mobility", Value: 1}} }, "p.mobility", "1", "low-field mobility must be between 100u and 200m"},
+		{"override NaN", func(d *Design) { d.Overrides = []Override{{Key: "p.mobility", Value: math.NaN()}} }, "p.mobility", "NaN", "between"},
+		{"overrides unsorted", func(d *Design) {
+			d.Overrides = []Override{{Key: "p.mobility", Value: 0.01}, {Key: "n.mobility", Value: 0.01}}
+		}, "n.mobility", "10m", "sorted by key"},
+		{"override twice", func(d *Design) {
+			d.Overrides = []Override{{Key: "n.mobility", Value: 0.01}, {Key: "n.mobility", Value: 0.02}}
+		}, "n.mobility", "20m", "each once"},
+		{"phi without doping", func(d *Design) { d.Overrides = []Override{{Key: "p.surface", Value: 0}} }, "p.surface", "0", "p.doping must be given"},
 	}
 	for _, tt := range tests {
 		d := Default("")
@@ -549,8 +562,8 @@ func TestSchema(t *testing.T) {
 		if !slices.Equal(keys, want) {
 			t.Fatalf("Schema(%q) keys = %q, want %q", proc, keys, want)
 		}
-		if len(overrideKeys) != 42 {
-			t.Errorf("%d override keys, want 21 parameters × 2 polarities", len(overrideKeys))
+		if len(overrideKeys) != 2*(len(device.ParamTable)+4) {
+			t.Errorf("%d override keys, want %d parameters and 4 spread figures × 2 polarities", len(overrideKeys), len(device.ParamTable))
 		}
 		d := Default(proc)
 		pr, _ := device.Builtin(proc)
@@ -579,7 +592,7 @@ func TestSchema(t *testing.T) {
 			t.Errorf("w schema = %+v, want %g … %g m, log", w, pr.WMin, pr.WMax)
 		}
 		// Overrides default to the process's own values.
-		vt0 := schema[numKeys+slices.Index(overrideKeys, "p.vt0")]
+		vt0 := schema[numKeys+slices.Index(overrideKeys, "p.thresh")]
 		if vt0.Default != pr.P.VT0 {
 			t.Errorf("p.vt0 default = %g, want the process value %g", vt0.Default, pr.P.VT0)
 		}
@@ -651,9 +664,17 @@ func TestOverrideRanges(t *testing.T) {
 		pr, _ := device.Builtin(name)
 		for _, key := range overrideKeys {
 			f, ref, _ := lookupOverride(key)
-			params := pr.N
+			params, pol := pr.N, device.NMOS
 			if ref.pol == 'p' {
-				params = pr.P
+				params, pol = pr.P, device.PMOS
+			}
+			if f.spread != nil { // a spread figure: the process's own is accepted
+				sp := pr.Spread(pol)
+				frag := "proc=" + name + "&" + key + "=" + units.Exact(*f.spread(&sp))
+				if _, err := Decode(frag); err != nil {
+					t.Errorf("%s: the process's own spread is rejected: %v", frag, err)
+				}
+				continue
 			}
 			v := *f.field(&params)
 			frag := "proc=" + name + "&" + key + "=" + units.Exact(v)
@@ -667,7 +688,7 @@ func TestOverrideRanges(t *testing.T) {
 			for _, b := range bounds {
 				p := params
 				*f.field(&p) = b
-				if f.name == "phi" && b == 0 {
+				if f.name == "surface" && b == 0 {
 					p.NSub = 1e23 // the doping rule, checked separately
 				}
 				if err := p.Validate(); err != nil {
@@ -854,9 +875,19 @@ func randomDesign(rng *rand.Rand) Design {
 				if r.zero && rng.IntN(3) == 0 && name != "phi" {
 					v = 0
 				}
-				d.Overrides = append(d.Overrides, Override{Key: pol + "." + name, Value: v})
+				d.Overrides = append(d.Overrides, Override{Key: CanonicalKey(pol + "." + name), Value: v})
+			}
+			if rng.IntN(4) == 0 { // a length bin or two
+				for range 1 + rng.IntN(2) {
+					l := num(pr.LMin, pr.LMax, true)
+					d.Overrides = append(d.Overrides,
+						Override{Key: pol + ".thresh", L: l, Value: num(0, 2, false)},
+						Override{Key: pol + ".dibl", L: l, Value: num(0, 1e-6, false)})
+				}
 			}
 		}
+		slices.SortFunc(d.Overrides, compareOverrides)
+		d.Overrides = slices.CompactFunc(d.Overrides, func(a, b Override) bool { return a.Key == b.Key && a.L == b.L })
 	}
 	d.Aids = randomAids(rng, &pr, &d, num, inside)
 	return d
@@ -870,11 +901,15 @@ func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi f
 	inside func(lo, hi float64) float64) Aids {
 	corners := []string{"tt", "ss", "ff", "sf", "fs"}
 	a := Aids{
-		Corner: corners[rng.IntN(len(corners))],
-		Amp:    num(1e-6, d.VDD, true),
-		MC:     rng.IntN(10001),
-		Seed:   rng.IntN(1e9 + 1),
-		Vary:   VarSet(rng.IntN(64)),
+		Corner:    corners[rng.IntN(len(corners))],
+		VDDTol:    num(0, 0.5, false),
+		Hold:      []string{"mirror", "fixed", "ideal"}[rng.IntN(3)],
+		Amp:       num(1e-6, d.VDD, true),
+		MC:        rng.IntN(10001),
+		Seed:      rng.IntN(1e9 + 1),
+		Vary:      VarSet(rng.IntN(int(varAll) + 1)),
+		Hard:      HardSet(rng.IntN(int(hardAll) + 1)),
+		Objective: Objective(objectiveWords[rng.IntN(len(objectiveWords))]),
 	}
 	target := func(lo, hi float64) float64 {
 		if rng.IntN(2) == 0 {
@@ -898,7 +933,8 @@ func randomAids(rng *rand.Rand, pr *device.Process, d *Design, num func(lo, hi f
 		return Range{l, h}
 	}
 	a.Ranges = Ranges{W: span(pr.WMin, pr.WMax), L: span(pr.LMin, pr.LMax), ID: span(1e-9, 10e-3),
-		RD: span(1, 1e9), RS: span(1e-3, 1e9)}
+		RD: span(1, 1e9), RS: span(1e-3, 1e9), LW: span(pr.WMin, pr.WMax), LL: span(pr.LMin, pr.LMax),
+		VOut: span(1e-3*d.VDD, d.VDD)}
 	a.Sweep.Key = sweepWords[rng.IntN(len(sweepWords))]
 	lo, hi, log, _ := d.KeyRange(a.Sweep.Key)
 	a.Sweep.Lo = num(lo, hi, log)
@@ -964,10 +1000,12 @@ func BenchmarkValidate(b *testing.B) {
 // only when they differ from their defaults, and the pinned design.
 func TestAidKeys(t *testing.T) {
 	d := Default("")
-	want := Aids{Corner: "tt", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
+	want := Aids{Corner: "tt", VDDTol: 0.1, Hold: "mirror", Amp: 10e-3, MC: 1000, Seed: 1, Vary: VarW | VarL | VarID | VarRD,
 		Ranges: Ranges{W: Range{1e-6, 200e-6}, L: Range{180e-9, 3.6e-6}, ID: Range{1e-6, 1e-3},
-			RD: Range{100, 1e6}, RS: Range{10, 100e3}},
-		Sweep: SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}
+			RD: Range{100, 1e6}, RS: Range{10, 100e3}, LW: Range{1e-6, 200e-6}, LL: Range{180e-9, 3.6e-6},
+			VOut: Range{0.18, 1.62}},
+		Objective: ObjNone,
+		Sweep:     SweepSpec{Key: "w", Lo: 220e-9, Hi: 1e-3, N: 50}}
 	if !reflect.DeepEqual(d.Aids, want) {
 		t.Errorf("default aids = %+v\nwant %+v", d.Aids, want)
 	}
@@ -983,11 +1021,16 @@ func TestAidKeys(t *testing.T) {
 		}, "t.gain=20&t.f3db=50M&t.idd=200u"},
 		{"vary=id.w", func(a Aids) bool { return a.Vary == VarW|VarID }, "vary=w.id"},
 		{"vary=none", func(a Aids) bool { return a.Vary == 0 }, "vary=none"},
+		{"vary=vout.lw.w.ll", func(a Aids) bool { return a.Vary == VarW|VarLW|VarLL|VarVOut }, "vary=w.lw.ll.vout"},
+		{"hard=power.idd&obj=area", func(a Aids) bool { return a.Hard == HardIDD|HardPower && a.Objective == ObjArea }, "hard=idd.power&obj=area"},
+		{"load=active&lo.lw=2u&hi.ll=5u&lo.vout=0.5&hi.vout=1.2", func(a Aids) bool {
+			return a.Ranges.LW == Range{2e-6, 200e-6} && a.Ranges.LL == Range{180e-9, 5e-6} && a.Ranges.VOut == Range{0.5, 1.2}
+		}, "lo.lw=2u&hi.ll=5u&lo.vout=500m&hi.vout=1.2"},
 		{"lo.w=2u&hi.w=50u", func(a Aids) bool { return a.Ranges.W == Range{2e-6, 50e-6} }, "lo.w=2u&hi.w=50u"},
 		// hi.w's default follows lo.w when lo.w is above it.
 		{"lo.w=300u", func(a Aids) bool { return a.Ranges.W == Range{300e-6, 1e-3} }, "lo.w=300u"},
 		{"sw=vin&sw.n=11", func(a Aids) bool { return a.Sweep == SweepSpec{"vin", 0, 1.8, 11} }, "sw=vin&sw.n=11"},
-		{"sw=n.vt0&sw.lo=0.3&sw.hi=0.6", func(a Aids) bool { return a.Sweep == SweepSpec{"n.vt0", 0.3, 0.6, 50} }, "sw=n.vt0&sw.lo=300m&sw.hi=600m"},
+		{"sw=n.vt0&sw.lo=0.3&sw.hi=0.6", func(a Aids) bool { return a.Sweep == SweepSpec{"n.thresh", 0.3, 0.6, 50} }, "sw=n.thresh&sw.lo=300m&sw.hi=600m"},
 	}
 	for _, g := range good {
 		d, err := Decode(g.fragment)
@@ -1011,6 +1054,11 @@ func TestAidKeys(t *testing.T) {
 		{"vary=w.x", "vary", `"x" is not one`},
 		{"vary=w.w", "vary", "given twice"},
 		{"vary=", "vary", `"" is not one`},
+		{"hard=gain", "hard", `"gain" is not one`},
+		{"hard=idd.idd", "hard", "given twice"},
+		{"obj=speed", "obj", "none, power, area, noise"},
+		{"load=active&lo.vout=1&hi.vout=0.9", "hi.vout", "above lo.vout"},
+		{"load=active&hi.vout=2", "hi.vout", "vdd = 1.8"},
 		{"lo.w=1u&hi.w=1u", "hi.w", "above lo.w"},
 		{"lo.rs=0", "lo.rs", "above 0"},
 		{"sw=fmax", "sw", "swept key must be one of"},

@@ -134,7 +134,7 @@ func (k *keyDef) relevant(d *Design) bool {
 
 // The accepted words. The slices are shared; never modify them.
 var (
-	versionWords = []string{"1"}
+	versionWords = []string{"1", "2"}
 	stageWords   = []string{string(CommonSource), string(CommonGate), string(SourceFollower)}
 	polWords     = []string{"n", "p"}
 	biasWords    = []string{string(BiasVin), string(BiasID), string(BiasGmID)}
@@ -173,16 +173,20 @@ func lengthSpan(pr *device.Process, _ *Design) span { return span{lo: pr.LMin, h
 var keyTable = [...]keyDef{
 	{
 		name: "v", group: GroupDevice, label: "format version",
-		doc:   "Version of the fragment format; this build reads 1.",
-		words: func(*Design) []string { return versionWords }, defWord: "1",
+		doc: "Version of the fragment format: 2; links of version 1 open with the demo processes as they were then " +
+			"(no drain-induced barrier lowering, less channel-length modulation), so they keep their figures.",
+		words: func(*Design) []string { return versionWords }, defWord: "2",
 		getWord: func(d *Design) string {
-			if d.Version == 1 {
+			switch d.Version {
+			case 1:
 				return "1"
+			case 2:
+				return "2"
 			}
 			return strconv.Itoa(d.Version)
 		},
-		setWord:   func(d *Design, _ string) { d.Version = 1 },
-		wrongWord: func(*Design) string { return "this build reads fragment version 1" },
+		setWord:   func(d *Design, w string) { d.Version = int(w[0] - '0') },
+		wrongWord: func(*Design) string { return "this build reads fragment versions 1 and 2" },
 	},
 	{
 		name: "stage", group: GroupDevice, label: "stage",
@@ -472,6 +476,25 @@ var keyTable = [...]keyDef{
 		optional: true,
 	},
 	{
+		name: "vddtol", group: GroupAids, label: "supply tolerance of the corners",
+		doc: "Supply spread of the corner table, a fraction of vdd: rows at vdd·(1 − vddtol), vdd and vdd·(1 + vddtol); " +
+			"0 keeps vdd alone.",
+		span: fixed(0, 0.5), def: constant(0.1), optional: true,
+		get: func(d *Design) float64 { return d.Aids.VDDTol },
+		set: func(d *Design, v float64) { d.Aids.VDDTol = v },
+	},
+	{
+		name: "hold", group: GroupAids, label: "bias held by",
+		doc: "What holds the bias of an id or gmid design at the corners and in Monte Carlo: mirror, a diode-connected copy " +
+			"of each current-biased transistor carrying the nominal current and varying with the rest; fixed, the nominal " +
+			"bias voltages; ideal, the current itself, exactly.",
+		words: func(*Design) []string { return holdWords }, defWord: "mirror",
+		getWord:  func(d *Design) string { return d.Aids.Hold },
+		setWord:  func(d *Design, w string) { d.Aids.Hold = w },
+		when:     []Condition{{Biases: []string{string(BiasID), string(BiasGmID)}}},
+		optional: true,
+	},
+	{
 		name: "amp", group: GroupAids, label: "input amplitude", unit: "V",
 		doc:  "Amplitude of the input sine for the distortion figures, V.",
 		span: func(_ *device.Process, d *Design) span { return span{lo: 1e-6, hi: d.VDD, hiName: "vdd"} },
@@ -513,7 +536,7 @@ var keyTable = [...]keyDef{
 		func(t *Targets) *float64 { return &t.Margin }),
 	{
 		name: "vary", group: GroupSizing, label: "inputs sizing may move",
-		doc:      "Inputs sizing may move, joined by dots (w.l.id.rd.rs.vin, any subset in any order), or none; those that do not matter for the stage are left alone.",
+		doc:      "Inputs sizing may move, joined by dots (w.l.id.rd.rs.vin.lw.ll.vout, any subset in any order), or none; those that do not matter for the stage are left alone.",
 		readText: readVary, defText: "w.l.id.rd",
 		writeText: func(d *Design) string { return d.Aids.Vary.String() },
 		checkText: func(d *Design) string {
@@ -523,7 +546,7 @@ var keyTable = [...]keyDef{
 			return ""
 		},
 		choices: append(append([]string(nil), varNames...), "none"), separator: ".",
-		accepts:  "any of w, l, id, rd, rs, vin joined by dots, or none",
+		accepts:  "any of w, l, id, rd, rs, vin, lw, ll, vout joined by dots, or none",
 		optional: true,
 	},
 	sizingRange("lo.w", "least width", "m", "Sizing: least channel width of M1, m.", widthBounds, rangeLow(1e-6), widthWhen,
@@ -547,9 +570,12 @@ var keyTable = [...]keyDef{
 		fixedBounds(0, 1e9), rangeLow(10), rsWhen, func(r *Ranges) *Range { return &r.RS }, true),
 	sizingRange("hi.rs", "most source resistor", "Ω", "Sizing: most source resistor, Ω.", fixedBounds(0, 1e9), rangeHigh(100e3), rsWhen,
 		func(r *Ranges) *Range { return &r.RS }, false),
+	// Steering sizing (sizingkeys.go): hard, obj, lo.lw, hi.lw, lo.ll, hi.ll, lo.vout, hi.vout.
+	sizingSteerKeys()[0], sizingSteerKeys()[1], sizingSteerKeys()[2], sizingSteerKeys()[3],
+	sizingSteerKeys()[4], sizingSteerKeys()[5], sizingSteerKeys()[6], sizingSteerKeys()[7],
 	{
 		name: "sw", group: GroupAids, label: "swept key",
-		doc:   "Input key a sweep moves: any number key of the design or a process parameter (n.vt0).",
+		doc:   "Input key a sweep moves: any number key of the design or a process parameter (n.thresh).",
 		words: func(*Design) []string { return sweepWords }, defWord: "w",
 		getWord:  func(d *Design) string { return d.Aids.Sweep.Key },
 		setWord:  func(d *Design, w string) { d.Aids.Sweep.Key = w },
@@ -601,13 +627,16 @@ var keyTable = [...]keyDef{
 const numKeys = len(keyTable)
 
 // overrideParam is one process parameter a fragment may override, as
-// "n.KEY" or "p.KEY".
+// "n.KEY" or "p.KEY", and for one length bin as "n.KEY@L". The names are
+// device.ParamTable's; old is the name links made before the rename carry,
+// which Decode still reads.
 type overrideParam struct {
-	name, label, unit, doc string
-	lo, hi                 float64
-	zeroMeans              string // 0 is accepted besides [lo, hi] and means this
-	log                    bool
-	field                  func(p *device.Params) *float64
+	name, old, label, unit, doc string
+	lo, hi                      float64
+	zeroMeans                   string // 0 is accepted besides [lo, hi] and means this
+	log                         bool
+	field                       func(p *device.Params) *float64 // a model parameter, or
+	spread                      func(s *device.Spread) *float64 // a figure of the manufacturing spread (no length bins)
 }
 
 func (f *overrideParam) span() span {
@@ -618,48 +647,58 @@ func (f *overrideParam) span() span {
 // ranges are generous bounds of physical sense for bulk CMOS, not the
 // limits of any one process.
 var overrideParams = [...]overrideParam{
-	{name: "bex", label: "mobility temperature exponent", lo: -3, hi: 0,
-		doc: "Mobility temperature exponent: µ(T) = u0·(T/TNom)^bex.", field: func(p *device.Params) *float64 { return &p.BEX }},
-	{name: "cgdo", label: "gate–drain overlap capacitance", unit: "F/m", lo: 0, hi: 5e-9,
-		doc: "Gate–drain overlap capacitance per width, F/m.", field: func(p *device.Params) *float64 { return &p.CGDO }},
-	{name: "cgso", label: "gate–source overlap capacitance", unit: "F/m", lo: 0, hi: 5e-9,
-		doc: "Gate–source overlap capacitance per width, F/m.", field: func(p *device.Params) *float64 { return &p.CGSO }},
-	{name: "cj", label: "junction capacitance per area", unit: "F/m²", lo: 0, hi: 0.1,
-		doc: "Zero-bias bottom junction capacitance per area, F/m².", field: func(p *device.Params) *float64 { return &p.CJ }},
-	{name: "cjsw", label: "junction sidewall capacitance", unit: "F/m", lo: 0, hi: 5e-9,
-		doc: "Zero-bias sidewall junction capacitance per perimeter, F/m.", field: func(p *device.Params) *float64 { return &p.CJSW }},
-	{name: "clm", label: "channel-length modulation", unit: "m/V", lo: 0, hi: 1e-6,
-		doc: "Channel-length modulation, m/V: λ = clm/L.", field: func(p *device.Params) *float64 { return &p.LambdaL }},
-	{name: "ecrit", label: "critical field", unit: "V/m", lo: 1e5, hi: 1e10, zeroMeans: "off", log: true,
-		doc: "Critical lateral field for velocity saturation, V/m; 0 turns it off.", field: func(p *device.Params) *float64 { return &p.ECrit }},
-	{name: "gamma", label: "body-effect coefficient", unit: "√V", lo: 0, hi: 3,
-		doc: "Body-effect coefficient, √V.", field: func(p *device.Params) *float64 { return &p.Gamma }},
-	{name: "kf", label: "flicker-noise coefficient", unit: "V²·F", lo: 0, hi: 1e-20,
-		doc: "Flicker-noise coefficient, V²·F: gate-referred S_vg(f) = kf/(Cox·W·L·f).", field: func(p *device.Params) *float64 { return &p.KF }},
-	{name: "ldiff", label: "diffusion length", unit: "m", lo: 0, hi: 10e-6,
-		doc: "Source/drain diffusion length, m: junction area W·ldiff, perimeter W + 2·ldiff.", field: func(p *device.Params) *float64 { return &p.LDiff }},
-	{name: "mj", label: "junction grading exponent", lo: 0, hi: 1,
-		doc: "Grading exponent of the bottom junction.", field: func(p *device.Params) *float64 { return &p.MJ }},
-	{name: "mjsw", label: "sidewall grading exponent", lo: 0, hi: 1,
-		doc: "Grading exponent of the sidewall junction.", field: func(p *device.Params) *float64 { return &p.MJSW }},
-	{name: "nfix", label: "fixed slope factor", lo: 1, hi: 3, zeroMeans: "derived from gamma",
-		doc: "A constant slope factor n; 0 derives n from gamma.", field: func(p *device.Params) *float64 { return &p.NFixed }},
-	{name: "nsub", label: "substrate doping", unit: "m⁻³", lo: 1e20, hi: 1e26, zeroMeans: "unused", log: true,
-		doc: "Substrate doping, m⁻³; used only when phi is 0.", field: func(p *device.Params) *float64 { return &p.NSub }},
-	{name: "pb", label: "junction built-in potential", unit: "V", lo: 0.1, hi: 2,
-		doc: "Junction built-in potential, V.", field: func(p *device.Params) *float64 { return &p.PB }},
-	{name: "phi", label: "surface potential 2φF", unit: "V", lo: 0.2, hi: 1.5, zeroMeans: "derived from nsub",
-		doc: "Surface potential 2φF at the nominal temperature, V; 0 derives it from nsub.", field: func(p *device.Params) *float64 { return &p.Phi }},
-	{name: "tcv", label: "threshold temperature drift", unit: "V/K", lo: -5e-3, hi: 5e-3,
-		doc: "Threshold drift, V/K: VT0(T) = vt0 − tcv·(T − TNom).", field: func(p *device.Params) *float64 { return &p.TCV }},
-	{name: "theta", label: "mobility reduction", unit: "1/V", lo: 0, hi: 5,
-		doc: "Mobility reduction by the vertical field, 1/V.", field: func(p *device.Params) *float64 { return &p.Theta }},
-	{name: "tox", label: "oxide thickness", unit: "m", lo: 0.5e-9, hi: 100e-9, log: true,
-		doc: "Gate-oxide thickness, m (Cox = 3.9·ε0/tox).", field: func(p *device.Params) *float64 { return &p.Tox }},
-	{name: "u0", label: "low-field mobility", unit: "m²/(V·s)", lo: 1e-4, hi: 0.2, log: true,
-		doc: "Low-field carrier mobility at the nominal temperature, m²/(V·s).", field: func(p *device.Params) *float64 { return &p.U0 }},
-	{name: "vt0", label: "threshold voltage", unit: "V", lo: 0, hi: 2,
-		doc: "Zero-bias threshold voltage magnitude at the nominal temperature, V.", field: func(p *device.Params) *float64 { return &p.VT0 }},
+	{name: "betamatch", label: "current-factor mismatch A_β", unit: "m", lo: 0, hi: 1e-7, zeroMeans: "the base process's",
+		doc: "Pelgrom current-factor mismatch A_β, m (1 %·µm = 10n): σ(Δβ/β) = A_β/√(W·L) in Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.ABeta }},
+	{name: "body", old: "gamma", label: "body-effect coefficient", unit: "√V", lo: 0, hi: 3,
+		doc: "Body-effect coefficient γ, √V.", field: func(p *device.Params) *float64 { return &p.Gamma }},
+	{name: "dibl", label: "drain-induced barrier lowering", unit: "m", lo: 0, hi: 1e-6,
+		doc: "Drain-induced barrier lowering σ·L, m: the threshold falls by σ·|VDS| with σ = dibl/L.", field: func(p *device.Params) *float64 { return &p.DIBL }},
+	{name: "difflen", old: "ldiff", label: "diffusion length", unit: "m", lo: 0, hi: 10e-6,
+		doc: "Source/drain diffusion length L_diff, m: junction area W·L_diff, perimeter W + 2·L_diff.", field: func(p *device.Params) *float64 { return &p.LDiff }},
+	{name: "doping", old: "nsub", label: "substrate doping", unit: "m⁻³", lo: 1e20, hi: 1e26, zeroMeans: "unused", log: true,
+		doc: "Substrate doping N_sub, m⁻³; used only when surface is 0.", field: func(p *device.Params) *float64 { return &p.NSub }},
+	{name: "flicker", old: "kf", label: "flicker-noise coefficient", unit: "V²·F", lo: 0, hi: 1e-20,
+		doc: "Flicker-noise coefficient K_f, V²·F: gate-referred S_vg(f) = K_f/(Cox·W·L·f).", field: func(p *device.Params) *float64 { return &p.KF }},
+	{name: "jarea", old: "cj", label: "junction capacitance per area", unit: "F/m²", lo: 0, hi: 0.1,
+		doc: "Zero-bias bottom junction capacitance per area C_j0, F/m².", field: func(p *device.Params) *float64 { return &p.CJ }},
+	{name: "jgrade", old: "mj", label: "junction grading exponent", lo: 0, hi: 1,
+		doc: "Grading exponent m_j of the bottom junction.", field: func(p *device.Params) *float64 { return &p.MJ }},
+	{name: "jpotential", old: "pb", label: "junction built-in potential", unit: "V", lo: 0.1, hi: 2,
+		doc: "Junction built-in potential φ_B, V.", field: func(p *device.Params) *float64 { return &p.PB }},
+	{name: "jside", old: "cjsw", label: "junction sidewall capacitance", unit: "F/m", lo: 0, hi: 5e-9,
+		doc: "Zero-bias sidewall junction capacitance per perimeter C_jsw0, F/m.", field: func(p *device.Params) *float64 { return &p.CJSW }},
+	{name: "jsidegrade", old: "mjsw", label: "sidewall grading exponent", lo: 0, hi: 1,
+		doc: "Grading exponent m_jsw of the sidewall junction.", field: func(p *device.Params) *float64 { return &p.MJSW }},
+	{name: "lenmod", old: "clm", label: "channel-length modulation", unit: "m/V", lo: 0, hi: 1e-6,
+		doc: "Channel-length modulation λ·L, m/V: λ = lenmod/L.", field: func(p *device.Params) *float64 { return &p.LambdaL }},
+	{name: "mobility", old: "u0", label: "low-field mobility", unit: "m²/(V·s)", lo: 1e-4, hi: 0.2, log: true,
+		doc: "Low-field carrier mobility µ0 at the nominal temperature, m²/(V·s).", field: func(p *device.Params) *float64 { return &p.U0 }},
+	{name: "mobred", old: "theta", label: "mobility reduction", unit: "1/V", lo: 0, hi: 5,
+		doc: "Mobility reduction θ by the vertical field, 1/V.", field: func(p *device.Params) *float64 { return &p.Theta }},
+	{name: "mobspread", label: "global mobility spread σ(µ)/µ", lo: 0, hi: 0.3, zeroMeans: "the base process's",
+		doc: "One standard deviation of the die-to-die mobility shift, relative (0.04 = 4 %), for corners (3σ) and Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.SigmaMu }},
+	{name: "mobtemp", old: "bex", label: "mobility temperature exponent", lo: -3, hi: 0,
+		doc: "Mobility temperature exponent β_µ: µ(T) = µ0·(T/TNom)^β_µ.", field: func(p *device.Params) *float64 { return &p.BEX }},
+	{name: "ovdrain", old: "cgdo", label: "gate–drain overlap capacitance", unit: "F/m", lo: 0, hi: 5e-9,
+		doc: "Gate–drain overlap capacitance per width C_ov,d, F/m.", field: func(p *device.Params) *float64 { return &p.CGDO }},
+	{name: "ovsource", old: "cgso", label: "gate–source overlap capacitance", unit: "F/m", lo: 0, hi: 5e-9,
+		doc: "Gate–source overlap capacitance per width C_ov,s, F/m.", field: func(p *device.Params) *float64 { return &p.CGSO }},
+	{name: "oxide", old: "tox", label: "oxide thickness", unit: "m", lo: 0.5e-9, hi: 100e-9, log: true,
+		doc: "Gate-oxide thickness t_ox, m (Cox = 3.9·ε0/t_ox).", field: func(p *device.Params) *float64 { return &p.Tox }},
+	{name: "slope", old: "nfix", label: "fixed slope factor", lo: 1, hi: 3, zeroMeans: "derived from body",
+		doc: "A constant slope factor n; 0 derives n from the body-effect coefficient.", field: func(p *device.Params) *float64 { return &p.NFixed }},
+	{name: "surface", old: "phi", label: "surface potential 2φF", unit: "V", lo: 0.2, hi: 1.5, zeroMeans: "derived from doping",
+		doc: "Surface potential 2φF at the nominal temperature, V; 0 derives it from the doping.", field: func(p *device.Params) *float64 { return &p.Phi }},
+	{name: "thresh", old: "vt0", label: "threshold voltage", unit: "V", lo: 0, hi: 2,
+		doc: "Zero-bias threshold voltage magnitude V_T0 at the nominal temperature, V.", field: func(p *device.Params) *float64 { return &p.VT0 }},
+	{name: "threshtemp", old: "tcv", label: "threshold temperature drift", unit: "V/K", lo: -5e-3, hi: 5e-3,
+		doc: "Threshold drift dV_T0/dT, V/K: the threshold falls by threshtemp·(T − TNom).", field: func(p *device.Params) *float64 { return &p.TCV }},
+	{name: "velsat", old: "ecrit", label: "critical field", unit: "V/m", lo: 1e5, hi: 1e10, zeroMeans: "off", log: true,
+		doc: "Critical lateral field E_c for velocity saturation, V/m; 0 turns it off.", field: func(p *device.Params) *float64 { return &p.ECrit }},
+	{name: "vtmatch", label: "threshold mismatch A_VT", unit: "V·m", lo: 0, hi: 50e-9, zeroMeans: "the base process's",
+		doc: "Pelgrom threshold mismatch A_VT, V·m (1 mV·µm = 1n): σ(ΔVT) = A_VT/√(W·L) in Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.AVT }},
+	{name: "vtspread", label: "global threshold spread σ(VT)", unit: "V", lo: 0, hi: 0.2, zeroMeans: "the base process's",
+		doc: "One standard deviation of the die-to-die threshold shift, V, for corners (3σ) and Monte Carlo; 0 keeps the base process's.", spread: func(s *device.Spread) *float64 { return &s.SigmaVT }},
 }
 
 // overrideRef says which polarity and parameter an override key names.
@@ -670,8 +709,8 @@ type overrideRef struct {
 
 var (
 	keyIndex      = map[string]int{}
-	overrideIndex = map[string]overrideRef{}
-	overrideKeys  []string // every override key, sorted: "n.bex" … "p.vt0"
+	overrideIndex = map[string]overrideRef{} // by name and by old name
+	overrideKeys  []string                   // every override key by its name, sorted: "n.body" … "p.velsat"
 )
 
 // tableRows is keyTable, for the functions its own rows call (a row may
@@ -694,12 +733,16 @@ func init() {
 			key := string(pol) + "." + overrideParams[i].name
 			overrideIndex[key] = overrideRef{pol: pol, field: i}
 			overrideKeys = append(overrideKeys, key)
+			if old := overrideParams[i].old; old != "" {
+				overrideIndex[string(pol)+"."+old] = overrideRef{pol: pol, field: i}
+			}
 		}
 	}
 	sweepWords = append(sweepWords, overrideKeys...)
 }
 
-// lookupOverride returns the field an override key names.
+// lookupOverride returns the field an override key names, by its name
+// ("n.thresh") or its old name ("n.vt0"), without a length suffix.
 func lookupOverride(key string) (*overrideParam, overrideRef, bool) {
 	ref, ok := overrideIndex[key]
 	if !ok {
@@ -708,8 +751,36 @@ func lookupOverride(key string) (*overrideParam, overrideRef, bool) {
 	return &overrideParams[ref.field], ref, true
 }
 
+// key returns the override key of ref by the parameter's name: "n.thresh".
+func (ref overrideRef) key() string {
+	if ref.pol == 'p' {
+		return pKeys[ref.field]
+	}
+	return nKeys[ref.field]
+}
+
+// nKeys and pKeys are the override keys by field, made once (key runs on
+// every evaluation).
+var nKeys, pKeys [len(overrideParams)]string
+
+func init() {
+	for i := range overrideParams {
+		nKeys[i], pKeys[i] = "n."+overrideParams[i].name, "p."+overrideParams[i].name
+	}
+}
+
+// CanonicalKey returns key as the current version writes it: an override
+// by its old name ("n.vt0") becomes its name ("n.thresh"); any other key is
+// returned as it is.
+func CanonicalKey(key string) string {
+	if _, ref, ok := lookupOverride(key); ok {
+		return ref.key()
+	}
+	return key
+}
+
 // Relevant reports whether key matters for the design's stage, load and
-// bias mode. Every process-parameter override ("n.vt0") is relevant; an
+// bias mode. Every process-parameter override ("n.thresh") is relevant; an
 // unknown key is not.
 func (d Design) Relevant(key string) bool {
 	if i, ok := keyIndex[key]; ok {
@@ -747,6 +818,7 @@ func clamp(v, lo, hi float64) float64 {
 // The design aids' words and relevance conditions.
 var (
 	cornerWords = device.CornerNames()
+	holdWords   = []string{"mirror", "fixed", "ideal"}
 	// sweepWords are the keys a sweep may move, set in init: every number
 	// key of the design above the aids but the frequency sweep's own, then
 	// every override.
@@ -893,7 +965,7 @@ func (d Design) KeyRange(key string) (lo, hi float64, log, ok bool) {
 
 // readVary reads the inputs sizing may move.
 func readVary(d *Design, text string) string {
-	const accepted = "inputs sizing may move must be any of w, l, id, rd, rs, vin joined by dots, or none"
+	const accepted = "inputs sizing may move must be any of w, l, id, rd, rs, vin, lw, ll, vout joined by dots, or none"
 	if text == "none" {
 		d.Aids.Vary = 0
 		return ""

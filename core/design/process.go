@@ -2,59 +2,55 @@ package design
 
 import (
 	"fmt"
-	"strings"
+	"slices"
 
 	"stagewright/core/device"
 )
 
-// overrideField maps an override key's parameter name (after "n." or
-// "p.") to the field of device.Params it replaces.
-var overrideField = map[string]func(*device.Params) *float64{
-	"vt0":   func(p *device.Params) *float64 { return &p.VT0 },
-	"u0":    func(p *device.Params) *float64 { return &p.U0 },
-	"tox":   func(p *device.Params) *float64 { return &p.Tox },
-	"gamma": func(p *device.Params) *float64 { return &p.Gamma },
-	"phi":   func(p *device.Params) *float64 { return &p.Phi },
-	"nsub":  func(p *device.Params) *float64 { return &p.NSub },
-	"nfix":  func(p *device.Params) *float64 { return &p.NFixed },
-	"clm":   func(p *device.Params) *float64 { return &p.LambdaL },
-	"theta": func(p *device.Params) *float64 { return &p.Theta },
-	"ecrit": func(p *device.Params) *float64 { return &p.ECrit },
-	"tcv":   func(p *device.Params) *float64 { return &p.TCV },
-	"bex":   func(p *device.Params) *float64 { return &p.BEX },
-	"cgso":  func(p *device.Params) *float64 { return &p.CGSO },
-	"cgdo":  func(p *device.Params) *float64 { return &p.CGDO },
-	"cj":    func(p *device.Params) *float64 { return &p.CJ },
-	"cjsw":  func(p *device.Params) *float64 { return &p.CJSW },
-	"mj":    func(p *device.Params) *float64 { return &p.MJ },
-	"mjsw":  func(p *device.Params) *float64 { return &p.MJSW },
-	"pb":    func(p *device.Params) *float64 { return &p.PB },
-	"ldiff": func(p *device.Params) *float64 { return &p.LDiff },
-	"kf":    func(p *device.Params) *float64 { return &p.KF },
-}
-
 // ProcessOf returns the design's process with its overrides applied and
 // then moved to the design's corner (Aids.Corner; "" means tt): the
-// overrides describe the typical device, the corner skews it.
+// overrides describe the typical device, the corner skews it. The built-in
+// process is the version the design's fragment version names (see
+// device.BuiltinVersion), so a link keeps its figures.
+//
+// Overrides for every length replace a polarity's parameters. Overrides
+// with a length (L > 0) make bins: one parameter set per length named,
+// each the polarity's set with every override of that length applied.
 func (d Design) ProcessOf() (device.Process, error) {
-	pr, ok := device.Builtin(d.Process)
+	version := d.Version
+	if version == 0 {
+		version = device.LatestVersion
+	}
+	pr, ok := device.BuiltinVersion(d.Process, version)
 	if !ok {
-		return pr, fmt.Errorf("unknown process %q", d.Process)
+		return pr, fmt.Errorf("unknown process %q (fragment version %d)", d.Process, d.Version)
 	}
 	for _, o := range d.Overrides {
-		pol, name, _ := strings.Cut(o.Key, ".")
-		field, ok := overrideField[name]
-		if !ok || (pol != "n" && pol != "p") {
+		if o.L != 0 {
+			continue
+		}
+		f, ref, ok := lookupOverride(o.Key)
+		if !ok {
 			return pr, fmt.Errorf("unknown process parameter %q", o.Key)
 		}
-		if pol == "n" {
-			*field(&pr.N) = o.Value
-		} else {
-			*field(&pr.P) = o.Value
+		if f.spread != nil {
+			sp := &pr.NSpread
+			if ref.pol == 'p' {
+				sp = &pr.PSpread
+			}
+			*f.spread(sp) = o.Value
+			continue
 		}
+		*f.field(polParams(&pr, ref.pol)) = o.Value
+	}
+	var err error
+	if pr.NBins, err = bins(d.Overrides, 'n', pr.N); err == nil {
+		pr.PBins, err = bins(d.Overrides, 'p', pr.P)
+	}
+	if err != nil {
+		return pr, err
 	}
 	if c := d.Aids.Corner; c != "" && c != "tt" {
-		var err error
 		if pr, err = device.Corner(pr, c); err != nil {
 			return pr, fmt.Errorf("corner: %w", err)
 		}
@@ -65,5 +61,54 @@ func (d Design) ProcessOf() (device.Process, error) {
 	if err := pr.P.Validate(); err != nil {
 		return pr, fmt.Errorf("PMOS parameters: %w", err)
 	}
+	if err := pr.Validate(); err != nil {
+		return pr, err
+	}
 	return pr, nil
+}
+
+func polParams(pr *device.Process, pol byte) *device.Params {
+	if pol == 'p' {
+		return &pr.P
+	}
+	return &pr.N
+}
+
+// bins returns the length bins of polarity pol: one set per length that an
+// override of pol names, each base with that length's overrides applied;
+// nil when pol has none.
+func bins(overrides []Override, pol byte, base device.Params) ([]device.Bin, error) {
+	n := 0 // at most this many lengths: one allocation for all bins
+	for _, o := range overrides {
+		if o.L != 0 && o.Key[0] == pol {
+			n++
+		}
+	}
+	if n == 0 {
+		return nil, nil
+	}
+	out := make([]device.Bin, 0, n)
+	for _, o := range overrides {
+		if o.L == 0 || o.Key[0] != pol {
+			continue
+		}
+		f, _, ok := lookupOverride(o.Key)
+		if !ok || f.field == nil {
+			return nil, fmt.Errorf("%q has no length bins", o.Key)
+		}
+		i, found := slices.BinarySearchFunc(out, o.L, func(b device.Bin, l float64) int {
+			switch {
+			case b.L < l:
+				return -1
+			case b.L > l:
+				return 1
+			}
+			return 0
+		})
+		if !found {
+			out = slices.Insert(out, i, device.Bin{L: o.L, Params: base})
+		}
+		*f.field(&out[i].Params) = o.Value
+	}
+	return out, nil
 }

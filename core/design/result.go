@@ -66,6 +66,21 @@ type Result struct {
 	Dominant *int           `json:"dominant_pole"`
 	Estimate map[string]Est `json:"estimates,omitempty"`
 	Noise    *Noise         `json:"noise,omitempty"`
+	Large    *LargeSignal   `json:"large_signal,omitempty"`
+}
+
+// LargeSignal holds the figures of the stage beyond small signals.
+type LargeSignal struct {
+	Slew *SlewRate `json:"slew,omitempty"` // nil when cl is 0
+}
+
+// SlewRate is how fast the output can move into cl, up and down (V/s,
+// both positive), with the currents behind them (A): see stage.Slew.
+type SlewRate struct {
+	Up    Num `json:"up"`
+	Down  Num `json:"down"`
+	IUp   Num `json:"i_up"`
+	IDown Num `json:"i_down"`
 }
 
 // Failure says why there is no result: Code is one of "fragment",

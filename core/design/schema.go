@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strings"
 
+	"stagewright/core/device"
 	"stagewright/core/units"
 )
 
@@ -63,7 +64,7 @@ type KeyInfo struct {
 
 // Schema returns the key table for the built-in process proc ("" or an
 // unknown name: d180): the plain keys in canonical order, then every
-// process-parameter override ("n.bex" … "p.vt0") with the process's value as
+// process-parameter override ("n.body" … "p.velsat") with the process's value as
 // its default. The result is freshly allocated and safe to marshal as JSON
 // (no infinities).
 func Schema(proc string) []KeyInfo {
@@ -115,13 +116,20 @@ func Schema(proc string) []KeyInfo {
 	}
 	for _, key := range overrideKeys {
 		f, ref, _ := lookupOverride(key)
-		params, kind := pr.N, "NMOS"
+		params, pol, kind := pr.N, device.NMOS, "NMOS"
 		if ref.pol == 'p' {
-			params, kind = pr.P, "PMOS"
+			params, pol, kind = pr.P, device.PMOS, "PMOS"
+		}
+		var def float64
+		if f.spread != nil {
+			sp := pr.Spread(pol)
+			def = *f.spread(&sp)
+		} else {
+			def = *f.field(&params)
 		}
 		infos = append(infos, KeyInfo{
 			Key: key, Group: GroupProcess, Label: kind + " " + f.label, Unit: f.unit,
-			Default: *f.field(&params), Min: f.lo, Max: f.hi, Log: f.log, ZeroMeans: f.zeroMeans,
+			Default: def, Min: f.lo, Max: f.hi, Log: f.log, ZeroMeans: f.zeroMeans,
 			Doc: kind + ": " + f.doc,
 		})
 	}

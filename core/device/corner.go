@@ -38,24 +38,35 @@ var spreads = map[string][2]Spread{
 	},
 }
 
-// Spread returns the manufacturing spread of polarity p. A process without
-// its own table (not a built-in one) gets a generic invented spread:
-// SigmaVT 15 mV, SigmaMu 4 %, AVT = 1 mV·µm per nm of Tox and ABeta
-// 1 %·µm. A polarity that is neither NMOS nor PMOS gets the zero Spread.
+// Spread returns the manufacturing spread of polarity p: the process's
+// own figures (NSpread, PSpread) where they are not 0, the rest from the
+// built-in process's table. A process without a table (not a built-in
+// one) gets a generic invented spread: SigmaVT 15 mV, SigmaMu 4 %, AVT =
+// 1 mV·µm per nm of Tox and ABeta 1 %·µm. A polarity that is neither NMOS
+// nor PMOS gets the zero Spread.
 func (pr Process) Spread(p Polarity) Spread {
-	idx := 0
+	idx, own := 0, pr.NSpread
 	switch p {
 	case NMOS:
 	case PMOS:
-		idx = 1
+		idx, own = 1, pr.PSpread
 	default:
 		return Spread{}
 	}
-	if s, ok := spreads[pr.Name]; ok {
-		return s[idx]
+	s, ok := spreads[pr.Name]
+	base := s[idx]
+	if !ok {
+		// 1 mV·µm per nm: AVT = (Tox/1 nm)·1e-9 V·m, which is Tox·(1 V).
+		base = Spread{SigmaVT: 15e-3, SigmaMu: 0.04, AVT: pr.Params(p).Tox * 1.0, ABeta: 1e-8}
 	}
-	// 1 mV·µm per nm: AVT = (Tox/1 nm)·1e-9 V·m, which is Tox·(1 V).
-	return Spread{SigmaVT: 15e-3, SigmaMu: 0.04, AVT: pr.Params(p).Tox * 1.0, ABeta: 1e-8}
+	for _, f := range [...]struct{ own, base *float64 }{
+		{&own.SigmaVT, &base.SigmaVT}, {&own.SigmaMu, &base.SigmaMu}, {&own.AVT, &base.AVT}, {&own.ABeta, &base.ABeta},
+	} {
+		if *f.own != 0 {
+			*f.base = *f.own
+		}
+	}
+	return base
 }
 
 // CornerNames lists the process corners Corner accepts: the first letter
@@ -94,6 +105,8 @@ func Corner(pr Process, name string) (Process, error) {
 	out := pr
 	out.N = shift(pr.N, pr.Spread(NMOS), kn)
 	out.P = shift(pr.P, pr.Spread(PMOS), kp)
+	out.NBins = shiftBins(pr.NBins, pr.Spread(NMOS), kn)
+	out.PBins = shiftBins(pr.PBins, pr.Spread(PMOS), kp)
 	out.Title = pr.Title + ", corner " + name // Name stays, so Spread and look-ups by name still work
 	if err := out.N.Validate(); err != nil {
 		return pr, fmt.Errorf("device: corner %q of process %q, n-channel: %w", name, pr.Name, err)
@@ -102,6 +115,18 @@ func Corner(pr Process, name string) (Process, error) {
 		return pr, fmt.Errorf("device: corner %q of process %q, p-channel: %w", name, pr.Name, err)
 	}
 	return out, nil
+}
+
+// shiftBins returns a copy of bins with each set moved as shift moves one.
+func shiftBins(bins []Bin, s Spread, k float64) []Bin {
+	if len(bins) == 0 || k == 0 {
+		return bins
+	}
+	out := make([]Bin, len(bins))
+	for i, b := range bins {
+		out[i] = Bin{L: b.L, Params: shift(b.Params, s, k)}
+	}
+	return out
 }
 
 // cornerSign maps a corner letter to the number of global σ a device is

@@ -20,9 +20,9 @@ func Example() {
 	fmt.Printf("%v, %v inversion, VDsat = %.4g V\n", r.Region, r.Inversion, r.VDsat)
 	fmt.Printf("Cgs = %.4g F, fT = %.4g Hz\n", r.CGS, r.FT)
 	// Output:
-	// ID = 2.436e-05 A, gm/ID = 10.24 S/A, IC = 5.92
-	// saturation, moderate inversion, VDsat = 0.2069 V
-	// Cgs = 4.842e-14 F, fT = 7.225e+08 Hz
+	// ID = 2.54e-05 A, gm/ID = 10.1 S/A, IC = 6.174
+	// saturation, moderate inversion, VDsat = 0.209 V
+	// Cgs = 4.86e-14 F, fT = 7.413e+08 Hz
 }
 
 // The square-law hand model of the same device at the same current, for
@@ -33,7 +33,7 @@ func ExampleDevice_SquareLawAt() {
 	s := d.SquareLawAt(24.36e-6, 0)
 	fmt.Printf("Vov = %.4g V, gm = %.4g S, ro = %.4g Ω\n", s.Vov, s.GM, s.RO)
 	// Output:
-	// Vov = 0.1389 V, gm = 0.0003509 S, ro = 2.053e+06 Ω
+	// Vov = 0.1389 V, gm = 0.0003509 S, ro = 1.368e+06 Ω
 }
 
 // A p-channel device hangs from the supply: its current flows out of the
@@ -47,6 +47,6 @@ func ExampleDevice_Current() {
 	r := d.Report(0.4, 0.6, 1.2, 1.2)
 	fmt.Printf("report: ID = %.4g A, VGS = %.4g V, VTH = %.4g V, %v\n", r.ID, r.VGS, r.VTH, r.Region)
 	// Output:
-	// ID = -6.971e-05 A, gm = 0.0004583 S, gds = 4.932e-06 S
-	// report: ID = 6.971e-05 A, VGS = -0.6 V, VTH = -0.33 V, saturation
+	// ID = -7.44e-05 A, gm = 0.0004799 S, gds = 1.112e-05 S
+	// report: ID = 7.44e-05 A, VGS = -0.6 V, VTH = -0.324 V, saturation
 }

@@ -157,6 +157,14 @@ type Process struct {
 	WMin, WMax float64 // m, allowed channel width
 	TNom       float64 // K, temperature at which the parameters hold
 	N, P       Params
+
+	// NBins and PBins are per-length parameter sets, sorted by L; empty
+	// when one set (N, P) serves every length. See ParamsAt.
+	NBins, PBins []Bin
+
+	// NSpread and PSpread replace the manufacturing spread field by field
+	// where they are not 0 (a user's own figures); see Spread.
+	NSpread, PSpread Spread
 }
 
 // Params returns the parameters of polarity p; for a value that is neither
@@ -193,6 +201,12 @@ func (pr Process) Validate() error {
 	if err := pr.P.Validate(); err != nil {
 		return fmt.Errorf("device: process %q, p-channel: %w", pr.Name, err)
 	}
+	if err := validateBins(pr.NBins, pr.LMin, pr.LMax); err != nil {
+		return fmt.Errorf("device: process %q, n-channel %w", pr.Name, err)
+	}
+	if err := validateBins(pr.PBins, pr.LMin, pr.LMax); err != nil {
+		return fmt.Errorf("device: process %q, p-channel %w", pr.Name, err)
+	}
 	return nil
 }
 
@@ -213,7 +227,8 @@ var builtins = map[string]Process{
 			Tox:     4.1e-9, // Cox ≈ 8.42 mF/m² (8.42 fF/µm²)
 			Gamma:   0.45,
 			Phi:     0.85,
-			LambdaL: 0.02e-6, // λ ≈ 0.11 /V at L = 180 nm, 0.02 /V at 1 µm
+			LambdaL: 0.03e-6, // λ ≈ 0.17 /V at L = 180 nm, 0.03 /V at 1 µm
+			DIBL:    3.6e-9,  // σ = 0.02 V/V at 180 nm: gm·ro ≈ 31 at gm/ID 11 S/A, VDS 1.3 V
 			Theta:   0.25,
 			ECrit:   4e6, // 1/(ECrit·LMin) ≈ 1.4 /V
 			TCV:     1.0e-3,
@@ -231,7 +246,8 @@ var builtins = map[string]Process{
 			Tox:     4.1e-9,
 			Gamma:   0.40,
 			Phi:     0.80,
-			LambdaL: 0.025e-6, // λ ≈ 0.14 /V at 180 nm
+			LambdaL: 0.035e-6, // λ ≈ 0.19 /V at 180 nm
+			DIBL:    4.0e-9,   // σ ≈ 0.022 V/V at 180 nm
 			Theta:   0.20,
 			ECrit:   1.2e7,
 			TCV:     1.2e-3,
@@ -258,7 +274,8 @@ var builtins = map[string]Process{
 			Tox:     1.8e-9, // Cox ≈ 19.2 mF/m²
 			Gamma:   0.35,
 			Phi:     0.95,
-			LambdaL: 0.012e-6, // λ ≈ 0.18 /V at L = 65 nm
+			LambdaL: 0.018e-6, // λ ≈ 0.28 /V at L = 65 nm
+			DIBL:    1.3e-9,   // σ = 0.02 V/V at 65 nm: gm·ro ≈ 25 at gm/ID 11 S/A, VDS 0.8 V
 			Theta:   0.45,
 			ECrit:   3.5e6, // 1/(ECrit·LMin) ≈ 4.4 /V
 			TCV:     0.8e-3,
@@ -276,7 +293,8 @@ var builtins = map[string]Process{
 			Tox:     1.9e-9,
 			Gamma:   0.32,
 			Phi:     0.90,
-			LambdaL: 0.015e-6, // λ ≈ 0.23 /V at 65 nm
+			LambdaL: 0.022e-6, // λ ≈ 0.34 /V at 65 nm
+			DIBL:    1.5e-9,   // σ ≈ 0.023 V/V at 65 nm
 			Theta:   0.35,
 			ECrit:   1e7,
 			TCV:     1.0e-3,
@@ -291,11 +309,39 @@ var builtins = map[string]Process{
 	},
 }
 
-// Builtin returns the built-in process with the given name. Both built-in
-// processes are invented demo data.
+// Builtin returns the newest version of the built-in process with the
+// given name. Both built-in processes are invented demo data.
 func Builtin(name string) (Process, bool) {
+	return BuiltinVersion(name, LatestVersion)
+}
+
+// LatestVersion is the newest version of the built-in processes.
+const LatestVersion = 2
+
+// BuiltinVersion returns a version of a built-in process, so that a design
+// made with an older version keeps its figures. Version 1 had no
+// drain-induced barrier lowering and a smaller channel-length modulation,
+// which gave gm·ro ≈ 120 at the minimum length, three to five times what
+// such a node gives; version 2 (the newest) brings it to a few tens.
+// Versions outside 1 … LatestVersion are not found.
+func BuiltinVersion(name string, version int) (Process, bool) {
 	pr, ok := builtins[name]
-	return pr, ok
+	if !ok || version < 1 || version > LatestVersion {
+		return Process{}, false
+	}
+	if version == 1 {
+		v1 := version1LambdaL[name]
+		pr.N.LambdaL, pr.N.DIBL = v1[0], 0
+		pr.P.LambdaL, pr.P.DIBL = v1[1], 0
+	}
+	return pr, true
+}
+
+// version1LambdaL holds the channel-length modulation of version 1 of each
+// built-in process, n-channel then p-channel (DIBL was 0).
+var version1LambdaL = map[string][2]float64{
+	"d180": {0.02e-6, 0.025e-6},
+	"d65":  {0.012e-6, 0.015e-6},
 }
 
 // BuiltinNames returns the names of the built-in processes, sorted.

@@ -204,7 +204,8 @@ func TestThresholdIsPinchOffAtSource(t *testing.T) {
 			for _, vsb := range []float64{0, 0.3, 0.8} {
 				d, pr := builtinDevice(t, name, pol, 5e-6, 1e-6, 300.15)
 				s := float64(pol)
-				vth := d.Threshold(vsb)
+				// The threshold at the drain bias, lowered by DIBL.
+				vth := d.Threshold(vsb) - d.dibl*(pr.VDD-vsb)
 				r := d.Report(s*pr.VDD, s*(vsb+vth), s*vsb, 0)
 				// 1e-9: the only departure is the smooth positive part of VG',
 				// below 1e-12 V here (far above its 50 mV width).

@@ -253,8 +253,16 @@ func newEvaluator(pr *prepared, tnom float64, shift bool) *evaluator {
 
 // eval fills e.id, e.gm, e.gd (polarity-normalized) for the points with
 // inFit set, or every point when all is true.
-func (e *evaluator) eval(p device.Params, all bool) error {
+func (e *evaluator) eval(p device.Params, all bool) error { return e.evalLength(p, all, 0) }
+
+// evalLength is eval for the geometries of one length only (0: all); the
+// other points keep what an earlier eval left.
+func (e *evaluator) evalLength(p device.Params, all bool, only float64) error {
+	onlyKey := key(only)
 	for g, geo := range e.pr.geos {
+		if only != 0 && key(geo.l) != onlyKey {
+			continue
+		}
 		pg := p
 		if e.byLength != nil {
 			if b, ok := e.byLength(geo.l); ok {
@@ -271,6 +279,9 @@ func (e *evaluator) eval(p device.Params, all bool) error {
 	for i := range e.pr.pts {
 		pt := &e.pr.pts[i]
 		if !all && !pt.inFit {
+			continue
+		}
+		if only != 0 && key(e.pr.geos[pt.geo].l) != onlyKey {
 			continue
 		}
 		d := &e.devs[pt.geo]

@@ -37,5 +37,5 @@ func Example() {
 	fmt.Println(res.Report.Findings[0])
 	// Output:
 	// thresh 0.4800 V, ID rms error 0.00 %
-	// The model follows the data within 0.0 % rms in drain current over all 184 points; no region stands out.
+	// The model follows the data within 0.0 % rms in drain current over all 185 points; no region stands out.
 }

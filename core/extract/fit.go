@@ -63,7 +63,26 @@ func Fit(t chardata.Table, o Options, progress func(done, total int) bool) (Resu
 		// its own scatter, as in iteratively reweighted least squares).
 		w := f.wGDS
 		f.wGDS = 0
-		p1, it1, c1 := f.run(p0, progress)
+		var p1 device.Params
+		var it1 int
+		var c1 bool
+		f.lnIDOnly(func() {
+			// Many points: converge on a thinned set first (every k-th
+			// point, about coarsePoints of them), then on all; the thinned
+			// fit lands where the full one does within its noise, so the
+			// full run needs only a few iterations.
+			start := p0
+			if k := len(f.idPts) / coarsePoints; k >= 2 {
+				f.thinned(k, func() {
+					start, it1, c1 = f.run(p0, progress)
+				})
+			}
+			if !c1 {
+				var it int
+				p1, it, c1 = f.run(start, progress)
+				it1 += it
+			}
+		})
 		sID, sGDS := f.scatter(p1)
 		f.wGDS = w * sID / sGDS
 		p, iters, cancelled = p1, it1, c1
@@ -94,6 +113,42 @@ func Fit(t chardata.Table, o Options, progress func(done, total int) bool) (Resu
 		f.ev.byLength = nil
 	}
 	return res, nil
+}
+
+// coarsePoints is about how many points the first pass of a large fit
+// works on.
+const coarsePoints = 2000
+
+// lnIDOnly runs fn with the gds rows left out of the residuals and the
+// model evaluated only where ln ID is fitted (the first pass, before the
+// gds term gets its weight).
+func (f *fitter) lnIDOnly(fn func()) {
+	gds, all := f.gdsPts, f.needAll
+	f.gdsPts, f.needAll = nil, false
+	defer func() { f.gdsPts, f.needAll = gds, all }()
+	fn()
+}
+
+// thinned runs fn on every k-th ln ID point only: the others leave the
+// residuals and are not evaluated. Use inside lnIDOnly.
+func (f *fitter) thinned(k int, fn func()) {
+	full := f.idPts
+	kept := make([]int, 0, len(full)/k+1)
+	for j, i := range full {
+		if j%k == 0 {
+			kept = append(kept, i)
+		} else {
+			f.pr.pts[i].inFit = false
+		}
+	}
+	f.idPts = kept
+	defer func() {
+		for _, i := range full {
+			f.pr.pts[i].inFit = true
+		}
+		f.idPts = full
+	}()
+	fn()
 }
 
 func has(free []freeParam, k string) bool {
@@ -157,23 +212,30 @@ func (f *fitter) residualAt(p device.Params, r []float64) bool {
 	if err := f.ev.eval(p, f.needAll); err != nil {
 		return false
 	}
-	for k, i := range f.idPts {
+	for k := range r {
+		r[k] = f.residualRow(k)
+	}
+	return true
+}
+
+// residualRow is residual k from the evaluator's last values: ln ID for
+// k < len(idPts), then the weighted relative gds error.
+func (f *fitter) residualRow(k int) float64 {
+	if k < len(f.idPts) {
+		i := f.idPts[k]
 		id := f.ev.id[i]
 		if !(id > 0) {
 			id = f.pr.floor * 1e-6 // far below: a large but finite residual
 		}
-		r[k] = math.Log(id) - math.Log(f.pr.pts[i].ID)
+		return math.Log(id) - math.Log(f.pr.pts[i].ID)
 	}
-	off := len(f.idPts)
-	for k, i := range f.gdsPts {
-		d := f.pr.pts[i].gds
-		m := f.ev.modelGDS(i)
-		if math.IsNaN(m) {
-			m = f.ev.gd[i]
-		}
-		r[off+k] = f.wGDS * (m - d) / d
+	i := f.gdsPts[k-len(f.idPts)]
+	d := f.pr.pts[i].gds
+	m := f.ev.modelGDS(i)
+	if math.IsNaN(m) {
+		m = f.ev.gd[i]
 	}
-	return true
+	return f.wGDS * (m - d) / d
 }
 
 // scatter returns the rms ln ID residual and the rms relative gds error

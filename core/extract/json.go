@@ -38,6 +38,57 @@ func (r Result) AppendJSON(dst []byte) []byte {
 		w.close('}')
 	}
 	w.close(']')
+	r.appendReport(&w)
+	w.key("fragment")
+	w.str(r.Fragment())
+	w.key("iterations")
+	w.int(r.Iterations)
+	w.key("cancelled")
+	w.raw(strconv.FormatBool(r.Cancelled))
+	w.key("plots")
+	w.open('{')
+	for _, p := range []struct {
+		k string
+		s []series
+	}{{"id_vgs", r.plots.idVGS}, {"gmid_id", r.plots.gmidID}, {"gds_vds", r.plots.gdsVDS}} {
+		w.key(p.k)
+		w.open('[')
+		for _, s := range p.s {
+			w.open('{')
+			w.key("label")
+			w.str(s.label)
+			w.key("x")
+			w.nums(s.x)
+			w.key("data")
+			w.nums(s.data)
+			w.key("model")
+			w.nums(s.model)
+			w.close('}')
+		}
+		w.close(']')
+	}
+	w.close('}')
+	w.close('}')
+	return w.b
+}
+
+// AppendReportJSON appends the fit report alone, as a process file keeps
+// it: {"points":N,"iterations":N,"fit":{…},"findings":[…]} with the same
+// fields as in AppendJSON.
+func (r Result) AppendReportJSON(dst []byte) []byte {
+	w := jw{b: dst}
+	w.open('{')
+	w.key("points")
+	w.int(r.Report.Points)
+	w.key("iterations")
+	w.int(r.Iterations)
+	r.appendReport(&w)
+	w.close('}')
+	return w.b
+}
+
+// appendReport writes the "fit" and "findings" members.
+func (r Result) appendReport(w *jw) {
 	w.key("fit")
 	w.open('{')
 	w.key("id_rms_pct")
@@ -73,37 +124,6 @@ func (r Result) AppendJSON(dst []byte) []byte {
 		w.str(s)
 	}
 	w.close(']')
-	w.key("fragment")
-	w.str(r.Fragment())
-	w.key("iterations")
-	w.int(r.Iterations)
-	w.key("cancelled")
-	w.raw(strconv.FormatBool(r.Cancelled))
-	w.key("plots")
-	w.open('{')
-	for _, p := range []struct {
-		k string
-		s []series
-	}{{"id_vgs", r.plots.idVGS}, {"gmid_id", r.plots.gmidID}, {"gds_vds", r.plots.gdsVDS}} {
-		w.key(p.k)
-		w.open('[')
-		for _, s := range p.s {
-			w.open('{')
-			w.key("label")
-			w.str(s.label)
-			w.key("x")
-			w.nums(s.x)
-			w.key("data")
-			w.nums(s.data)
-			w.key("model")
-			w.nums(s.model)
-			w.close('}')
-		}
-		w.close(']')
-	}
-	w.close('}')
-	w.close('}')
-	return w.b
 }
 
 // Fragment returns the overrides to append to a design fragment: the
@@ -149,23 +169,38 @@ type jw struct {
 	comma bool
 }
 
+//go:noinline
 func (w *jw) sep() {
 	if w.comma {
 		w.b = append(w.b, ',')
 	}
 	w.comma = true
 }
+
+//go:noinline
 func (w *jw) key(k string) {
 	w.sep()
 	w.b = jsonenc.AppendString(w.b, k)
 	w.b = append(w.b, ':')
 	w.comma = false
 }
-func (w *jw) open(c byte)  { w.sep(); w.b = append(w.b, c); w.comma = false }
+
+//go:noinline
+func (w *jw) open(c byte) { w.sep(); w.b = append(w.b, c); w.comma = false }
+
+//go:noinline
 func (w *jw) close(c byte) { w.b = append(w.b, c); w.comma = true }
+
+//go:noinline
 func (w *jw) raw(s string) { w.sep(); w.b = append(w.b, s...) }
+
+//go:noinline
 func (w *jw) str(s string) { w.sep(); w.b = jsonenc.AppendString(w.b, s) }
-func (w *jw) int(i int)    { w.sep(); w.b = strconv.AppendInt(w.b, int64(i), 10) }
+
+//go:noinline
+func (w *jw) int(i int) { w.sep(); w.b = strconv.AppendInt(w.b, int64(i), 10) }
+
+//go:noinline
 func (w *jw) num(v float64) {
 	w.sep()
 	if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -174,6 +209,8 @@ func (w *jw) num(v float64) {
 	}
 	w.b = strconv.AppendFloat(w.b, v, 'g', -1, 64)
 }
+
+//go:noinline
 func (w *jw) nums(v []float64) {
 	w.open('[')
 	for _, x := range v {

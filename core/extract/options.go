@@ -43,8 +43,13 @@ type Result struct {
 	Cancelled  bool // the progress function asked to stop; Params are the best so far
 
 	plots plots
-	bins  []lengthBin
+	bins  []device.Bin
 }
+
+// Bins returns the per-length parameter sets, rising in L, when one set
+// did not follow the data and Options.Bins allowed them; nil otherwise.
+// The slice is the caller's.
+func (r Result) Bins() []device.Bin { return append([]device.Bin(nil), r.bins...) }
 
 // Error says what the data lack for a fit.
 type Error struct {

@@ -9,7 +9,8 @@ import (
 // freeParam is one parameter the fit can move: where it lives in Params,
 // the interval it is held to, and whether the fit works on its logarithm.
 //
-// The intervals are device.Params.Validate's accepted ranges; for the
+// The intervals are the ranges a design link accepts (inside
+// device.Params.Validate's); for the
 // parameters whose range starts at 0 (off) the fit, which works on their
 // logarithm, starts the interval at a value too small to matter instead
 // (a test checks every interval against Validate).
@@ -21,15 +22,24 @@ type freeParam struct {
 }
 
 var freeParams = []freeParam{
-	{"thresh", func(p *device.Params) *float64 { return &p.VT0 }, -1, 2, false},
-	{"mobility", func(p *device.Params) *float64 { return &p.U0 }, 1e-4, 1, true},
-	{"body", func(p *device.Params) *float64 { return &p.Gamma }, 1e-3, 5, true},    // γ below 1 m√V changes nothing measurable
-	{"slope", func(p *device.Params) *float64 { return &p.NFixed }, 1, 5, false},    // a constant n
+	{"thresh", func(p *device.Params) *float64 { return &p.VT0 }, 0, 2, false},
+	{"mobility", func(p *device.Params) *float64 { return &p.U0 }, 1e-4, 0.2, true},
+	{"body", func(p *device.Params) *float64 { return &p.Gamma }, 1e-3, 3, true},    // γ below 1 m√V changes nothing measurable
+	{"slope", func(p *device.Params) *float64 { return &p.NFixed }, 1, 3, false},    // a constant n
 	{"surface", func(p *device.Params) *float64 { return &p.Phi }, 0.2, 1.5, false}, // 2φF
-	{"mobred", func(p *device.Params) *float64 { return &p.Theta }, 1e-4, 10, true}, // θ·n·U_T below 3e-6: no effect
+	{"mobred", func(p *device.Params) *float64 { return &p.Theta }, 1e-4, 5, true},  // θ·n·U_T below 3e-6: no effect
 	{"velsat", func(p *device.Params) *float64 { return &p.ECrit }, 1e5, 1e10, true},
-	{"lenmod", func(p *device.Params) *float64 { return &p.LambdaL }, 1e-10, 1e-5, true}, // λ below 1e-4 /V at 1 µm
+	{"lenmod", func(p *device.Params) *float64 { return &p.LambdaL }, 1e-10, 1e-6, true}, // λ below 1e-4 /V at 1 µm
 	{"dibl", func(p *device.Params) *float64 { return &p.DIBL }, 1e-12, 1e-6, true},      // σ below 1e-5 V/V at 100 nm
+}
+
+// Bounds returns the interval a fitted parameter is kept in, by its
+// ParamTable key; false for a parameter the fit does not adjust. Every
+// interval lies inside what a design link accepts for the parameter, so a
+// fitted set always opens as a link.
+func Bounds(key string) (lo, hi float64, ok bool) {
+	f, ok := findFree(key)
+	return f.lo, f.hi, ok
 }
 
 func findFree(key string) (freeParam, bool) {

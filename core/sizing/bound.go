@@ -51,7 +51,7 @@ func stageGBWLimit(d *design.Design, gainAtLeast float64) (gbwLimit, bool) {
 	if err != nil {
 		return gbwLimit{}, false
 	}
-	prm := spec.Process.Params(spec.Pol)
+	prm := spec.Process.ParamsAt(spec.Pol, spec.L)
 	ut := device.ThermalVoltage(spec.TempK)
 	switch d.Stage {
 	case design.CommonSource:
@@ -88,13 +88,16 @@ func stageGBWLimit(d *design.Design, gainAtLeast float64) (gbwLimit, bool) {
 // 0, that is with the gate at the threshold and the source on the bulk
 // (EKV: VP(VG = VT0) = 0, Enz & Vittoz 2006).
 func slopeAtZeroVP(pol device.Polarity, prm device.Params, tnom, tempK float64) (float64, bool) {
-	dev, err := device.New(pol, prm, tnom, 10e-6, 1e-6, tempK)
+	const l, vds = 1e-6, 1.0
+	dev, err := device.New(pol, prm, tnom, 10e-6, l, tempK)
 	if err != nil {
 		return 0, false
 	}
 	s := float64(pol)
-	vt := dev.Threshold(0)
-	n := dev.Report(s*1, s*vt, 0, 0).N
+	// Barrier lowering raises the gate's effect by σ·VDS (σ = dibl/L), so
+	// VP = 0 sits that much below the zero-bias threshold at VDS = 1 V.
+	vg := dev.Threshold(0) - prm.DIBL/l*vds
+	n := dev.Report(s*vds, s*vg, 0, 0).N
 	if !(n >= 1) || math.IsInf(n, 0) {
 		return 0, false
 	}
@@ -134,6 +137,6 @@ func gainBandwidthBound(d *design.Design) string {
 	if ratio <= lim.most {
 		return ""
 	}
-	return fmt.Sprintf("%s; into CL = %s that needs a transconductance ≥ 2π·GBW·CL = %s, which with %s is %.3g S/A — above %.3g S/A, the most a %s stage of this process gives per ampere (%s). No W, L or load meets it: it takes at least %s, or a smaller CL or gain–bandwidth product",
+	return fmt.Sprintf("%s; into CL = %s that needs a transconductance ≥ 2π·GBW·CL = %s, which with %s is %.3g S/A — above %.3g S/A, the most a %s stage of this process gives per ampere (%s), so no W, L or load meets it: it takes at least %s, or a smaller CL or gain–bandwidth product",
 		how, units.Engineering(d.CL, 3, "F"), units.Engineering(gmNeed, 3, "S"), limit, ratio, lim.most, d.Stage, lim.why, units.Engineering(gmNeed/lim.most, 3, "A"))
 }

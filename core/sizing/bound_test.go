@@ -94,9 +94,11 @@ func TestCommonGateBoundUsesSourceTransconductance(t *testing.T) {
 	ut := k * 300.15 / q
 	d := decode(t, start+"&t.gain=10")
 	lim, ok := stageGBWLimit(&d, 10)
-	// The d180 process has no barrier lowering; λ = clm/L adds
-	// 20 nm/V / 180 nm = 0.111 S/A at the shortest L.
-	want := 1/(ut*0.9) + 20e-9/180e-9
+	// At the shortest L, 180 nm, the d180 process has λ = lenmod/L =
+	// 30 nm/V / 180 nm = 0.167 S/A and barrier lowering σ = dibl/L =
+	// 3.6 nm / 180 nm = 0.02, which raises the source's transconductance
+	// by the factor 1 + σ.
+	want := (1+3.6e-9/180e-9)/(ut*0.9) + 30e-9/180e-9
 	if !ok || math.Abs(lim.most/want-1) > 1e-12 {
 		t.Errorf("common-gate limit at gain 10: %.6g S/A, want %.6g", lim.most, want)
 	}

@@ -2,7 +2,11 @@
 // design aids (design.Targets): least gain, bandwidth and gain–bandwidth,
 // most supply current, power and input noise, least output swing and
 // saturation margin, by moving the inputs named in Aids.Vary (w, l, id, rd,
-// rs, vin) inside Aids.Ranges.
+// rs, vin, and the load's lw, ll and a current-source load's vout) inside
+// Aids.Ranges. The at-most targets named in Aids.Hard are never exceeded,
+// not even by the best compromise; Aids.Objective (power, area, noise) is
+// minimised once every target is met. The penalty is tiered so that the
+// choice is lexicographic: hard targets, then the rest, then the objective.
 //
 // The search is deterministic and bounded: a Latin-hypercube stage with a
 // fixed seed (Aids.Seed) over the variables, in logarithmic coordinates for

@@ -7,9 +7,9 @@ import (
 	"math/rand/v2"
 	"slices"
 	"strconv"
-	"strings"
 
 	"stagewright/core/design"
+	"stagewright/core/units"
 )
 
 // Search budget.
@@ -19,6 +19,22 @@ const (
 	restarts       = 4    // Nelder–Mead runs from the best distinct points
 	aim            = 0.02 // the search aims 2 % beyond each target (log margin), so rounding does not miss it
 	bindWithin     = 0.02 // a met target binds when its margin is at most 2 %
+	// hardEdge: a hard target counts as kept, in the search, only with a
+	// log margin of at least 0.1 %: twice the most that rounding an input
+	// to four digits moves a current set by it (0.05 %); the report falls
+	// back to the unrounded inputs should rounding still break it.
+	hardEdge = 1e-3
+	// The tiers of the penalty: a design that meets every target (with the
+	// aim) scores feasibleTier + ln(objective), below 0 for any objective
+	// in SI units (ln of 10 W is 2.3); one that misses soft targets scores
+	// its squared shortfalls (at most eight times 10² at worst); one that
+	// breaks a hard target hardTier on top; one with no operating point
+	// failTier. The search compares penalties only by order, so the tiers
+	// make the choice lexicographic: hard targets first, then the others,
+	// then the objective.
+	feasibleTier = -1e3
+	hardTier     = 1e3
+	failTier     = 1e4
 	// metSlack: a target missed by less than one part in a million counts as
 	// met: the operating point carries the DC solver's 1e-9 relative
 	// residual, and no display or fragment (four digits) shows the
@@ -48,8 +64,11 @@ type Sizing struct {
 	Ignored  []string      `json:"ignored,omitempty"` // vary entries that do not matter for this stage and bias
 	// Missed are the targets still missed at the best point; Conflicts the
 	// pairs of targets that traded against each other along the search.
-	Missed      []string   `json:"missed,omitempty"`
-	Conflicts   []Conflict `json:"conflicts,omitempty"`
+	Missed    []string   `json:"missed,omitempty"`
+	Conflicts []Conflict `json:"conflicts,omitempty"`
+	// Objective is what the search minimised once every target was met,
+	// nil without one (obj=none).
+	Objective   *Objective `json:"objective,omitempty"`
 	Evaluations int        `json:"evaluations"`
 	Cancelled   bool       `json:"cancelled,omitempty"`
 	// Bound explains, when it applies, why no sizing can meet the targets
@@ -70,8 +89,23 @@ type Target struct {
 	// target, (target − value)/target for a max; negative when missed.
 	Margin design.Num `json:"margin"`
 	Met    bool       `json:"met"`
-	Binds  bool       `json:"binds"` // met within 2 %
+	Binds  bool       `json:"binds"`          // met within 2 %
+	Hard   bool       `json:"hard,omitempty"` // an at-most target the search never lets the result exceed (hard=…)
 }
+
+// Objective is the objective's value at the found design and at the start.
+type Objective struct {
+	Key   string     `json:"key"`  // power, area, noise (the obj word)
+	Name  string     `json:"name"` // supply power, gate area, input noise
+	Unit  string     `json:"unit"` // W, m², V
+	Value design.Num `json:"value"`
+	Start design.Num `json:"start"` // at the design sizing started from; null without an operating point there
+}
+
+var (
+	objectiveNames = map[design.Objective]string{design.ObjPower: "supply power", design.ObjArea: "gate area", design.ObjNoise: "input noise"}
+	objectiveUnits = map[design.Objective]string{design.ObjPower: "W", design.ObjArea: "m²", design.ObjNoise: "V"}
+)
 
 // Var is one input the search moved.
 type Var struct {
@@ -129,6 +163,9 @@ func variables(d *design.Design) ([]variable, []string) {
 		{key: "rd", lo: r.RD.Lo, hi: r.RD.Hi, log: true, set: func(d *design.Design, v float64) { d.RD = v }, get: func(d *design.Design) float64 { return d.RD }},
 		{key: "rs", lo: r.RS.Lo, hi: r.RS.Hi, log: true, set: func(d *design.Design, v float64) { d.RS = v }, get: func(d *design.Design) float64 { return d.RS }},
 		{key: "vin", lo: 0, hi: d.VDD, set: func(d *design.Design, v float64) { d.Vin = v }, get: func(d *design.Design) float64 { return d.Vin }},
+		{key: "lw", lo: r.LW.Lo, hi: r.LW.Hi, log: true, set: func(d *design.Design, v float64) { d.LoadW = v }, get: func(d *design.Design) float64 { return d.LoadW }},
+		{key: "ll", lo: r.LL.Lo, hi: r.LL.Hi, log: true, set: func(d *design.Design, v float64) { d.LoadL = v }, get: func(d *design.Design) float64 { return d.LoadL }},
+		{key: "vout", lo: r.VOut.Lo, hi: math.Min(r.VOut.Hi, d.VDD), set: func(d *design.Design, v float64) { d.VOut = v }, get: func(d *design.Design) float64 { return d.VOut }},
 	}
 	var vars []variable
 	var ignored []string
@@ -159,9 +196,13 @@ type searcher struct {
 	goals    []goal
 	eval     design.Evaluator
 	progress func(done, total int) bool
-	points   []point
-	best     int // index into points; -1 before the first
-	stopped  bool
+	// objective is what a design that meets every target minimises
+	// (design.ObjNone: the search stops at the first one).
+	objective design.Objective
+	points    []point
+	best      int // index into points; -1 before the first
+	stopped   bool
+	reached   bool // the reported design has an operating point
 }
 
 // Size searches for a design meeting the targets of d.Aids.Targets by
@@ -187,17 +228,21 @@ func Size(d design.Design, progress func(done, total int) bool) (Sizing, error) 
 		return Sizing{}, fmt.Errorf("sizing: nothing to move: vary=%s names no input that matters for stage %s with load %s and bias %s",
 			d.Aids.Vary, d.Stage, d.Load, d.Bias)
 	}
-	s := &searcher{base: d, vars: vars, goals: gs, progress: progress, best: -1}
+	s := &searcher{base: d, vars: vars, goals: gs, progress: progress, best: -1, objective: d.Aids.Objective}
+	if s.objective == "" {
+		s.objective = design.ObjNone
+	}
 	s.base.Aids.Pin = nil // the pin plays no part and is put back at the end
 	s.run()
 
 	out := s.report(ignored)
 	// The bound is stated only after the search has failed: a search that
 	// meets the targets disproves any bound, and one stated beside a found
-	// design would be a contradiction.
+	// design would be a contradiction. It then is the message's reason and
+	// what to change.
 	if b := gainBandwidthBound(&d); b != "" && !out.Feasible {
 		out.Bound = b
-		out.Message += ". " + b
+		out.Message = "no design meets every target: " + b
 	}
 	out.Design.Aids.Pin = d.Aids.Pin
 	out.Fragment = out.Design.Encode()
@@ -264,9 +309,11 @@ func (s *searcher) run() {
 }
 
 // done says the search should stop: the budget is spent, progress asked to
-// stop, or every target is met with the margin aimed for.
+// stop, or every target is met with the margin aimed for and there is no
+// objective to improve.
 func (s *searcher) done() bool {
-	return s.stopped || len(s.points) >= MaxEvaluations || (s.best >= 0 && s.points[s.best].penalty == 0)
+	return s.stopped || len(s.points) >= MaxEvaluations ||
+		(s.objective == design.ObjNone && s.best >= 0 && s.points[s.best].penalty <= feasibleTier)
 }
 
 func (s *searcher) minimize(u0 []float64, budget int) {
@@ -293,17 +340,33 @@ func (s *searcher) evaluate(u []float64) int {
 		}
 		s.vars[i].set(&d, s.vars[i].value(u[i]))
 	}
-	p := point{u: slices.Clone(u), penalty: 1e3 + outside}
+	p := point{u: slices.Clone(u), penalty: failTier + outside}
 	if err := d.Validate(); err == nil {
 		r := s.eval.Evaluate(d)
 		if r.OK {
 			p.scores = make([]float64, len(s.goals))
 			p.penalty = 10 * outside
+			broken := 0.0
 			for i := range s.goals {
-				sc := s.goals[i].score(s.goals[i].value(&d, &r))
+				g := &s.goals[i]
+				sc := g.score(g.value(&d, &r))
 				p.scores[i] = sc
 				if short := aim - sc; short > 0 {
 					p.penalty += short * short
+				}
+				if short := hardEdge - sc; g.hard && short > 0 {
+					broken += short * short
+				}
+			}
+			switch {
+			case broken > 0:
+				p.penalty += hardTier + broken
+			case p.penalty == 0:
+				p.penalty = feasibleTier
+				if s.objective != design.ObjNone {
+					if v := objectiveOf(s.objective, &d, &r); v > 0 && !math.IsInf(v, 0) {
+						p.penalty += math.Log(v)
+					}
 				}
 			}
 		}
@@ -319,8 +382,39 @@ func (s *searcher) evaluate(u []float64) int {
 	return idx
 }
 
-// report evaluates the best point again and describes it.
+// report evaluates the best point again and describes it. The inputs are
+// rounded to four digits; should that break a hard target the best point
+// kept, they are reported unrounded instead.
 func (s *searcher) report(ignored []string) Sizing {
+	out := s.describe(ignored, true)
+	if s.points[s.best].penalty < hardTier && s.brokeHard(&out) {
+		out = s.describe(ignored, false)
+	}
+	switch {
+	case out.Objective != nil && out.Feasible:
+		out.Message = fmt.Sprintf("every target met, with the least %s found: %s", out.Objective.Name,
+			units.Engineering(float64(out.Objective.Value), 4, out.Objective.Unit))
+	case out.Feasible:
+		out.Message = "every target met"
+	default:
+		out.Message = s.failure(&out)
+	}
+	return out
+}
+
+// brokeHard says that a hard target is missed in out.
+func (s *searcher) brokeHard(out *Sizing) bool {
+	for i, t := range out.Targets {
+		if s.goals[i].hard && !t.Met {
+			return true
+		}
+	}
+	return false
+}
+
+// describe sets the best point's inputs (rounded to four digits when
+// round is set), evaluates it and fills in the targets.
+func (s *searcher) describe(ignored []string, round bool) Sizing {
 	best := s.points[s.best]
 	d := s.base
 	out := Sizing{Ignored: ignored, Evaluations: len(s.points)}
@@ -328,7 +422,10 @@ func (s *searcher) report(ignored []string) Sizing {
 		v := &s.vars[i]
 		// Four significant digits keep the fragment short; the search aims
 		// 2 % beyond each target, far more than the rounding moves it.
-		x := math.Max(v.lo, math.Min(v.hi, round4(v.value(best.u[i]))))
+		x := v.value(best.u[i])
+		if round {
+			x = math.Max(v.lo, math.Min(v.hi, round4(x)))
+		}
 		v.set(&d, x)
 		out.Vars = append(out.Vars, Var{Key: v.key, Lo: design.Num(v.lo), Hi: design.Num(v.hi),
 			Start: design.Num(v.get(&s.base)), Value: design.Num(x), Log: v.log})
@@ -336,6 +433,7 @@ func (s *searcher) report(ignored []string) Sizing {
 	out.Design = d
 	r := s.eval.Evaluate(d)
 	out.Feasible = r.OK
+	s.reached = r.OK
 	for i := range s.goals {
 		g := &s.goals[i]
 		value := math.NaN()
@@ -344,7 +442,7 @@ func (s *searcher) report(ignored []string) Sizing {
 		}
 		m := g.margin(value)
 		t := Target{Key: g.key, Name: g.name, Unit: g.unit, Kind: "max", Target: design.Num(g.target),
-			Value: design.Num(value), Margin: design.Num(m), Met: m >= -g.slack}
+			Value: design.Num(value), Margin: design.Num(m), Met: m >= -g.slack, Hard: g.hard}
 		if g.atLeast {
 			t.Kind = "min"
 		}
@@ -355,13 +453,18 @@ func (s *searcher) report(ignored []string) Sizing {
 		}
 		out.Targets = append(out.Targets, t)
 	}
-	switch {
-	case !r.OK:
-		out.Message = "no design meets every target: the best point found has no operating point"
-	case out.Feasible:
-		out.Message = "every target met"
-	default:
-		out.Message = "no design meets every target; the best compromise misses " + strings.Join(out.Missed, ", ")
+	if s.objective != design.ObjNone {
+		o := &Objective{Key: string(s.objective), Name: objectiveNames[s.objective], Unit: objectiveUnits[s.objective],
+			Value: design.Num(math.NaN()), Start: design.Num(math.NaN())}
+		if r.OK {
+			o.Value = design.Num(objectiveOf(s.objective, &d, &r))
+		}
+		if r0 := s.eval.Evaluate(s.base); r0.OK {
+			o.Start = design.Num(objectiveOf(s.objective, &s.base, &r0))
+		}
+		out.Objective = o
+	}
+	if r.OK && !out.Feasible {
 		out.Conflicts = s.conflicts(out.Missed)
 	}
 	return out

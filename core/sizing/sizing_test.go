@@ -156,3 +156,15 @@ func BenchmarkSize(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkSizeArea: a feasible spec with obj=area, which runs the whole
+// budget to lower the area once the targets are met.
+func BenchmarkSizeArea(b *testing.B) {
+	d := decode(b, "cl=500f&t.gain=10&t.f3db=20M&t.idd=300u&obj=area")
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Size(d, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

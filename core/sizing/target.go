@@ -15,6 +15,7 @@ type goal struct {
 	target          float64
 	value           func(d *design.Design, r *design.Result) float64
 	slack           float64 // relative miss still counted as met (metSlack, plus the leakage for a current or power)
+	hard            bool    // an at-most target that not even the best compromise may exceed (Aids.Hard)
 }
 
 // goals lists the targets of d that are set (non-zero), in key-table order.
@@ -49,6 +50,7 @@ func goals(d *design.Design) []goal {
 		case "t.power":
 			g.slack += leakSlack * d.VDD / g.target
 		}
+		g.hard = !g.atLeast && d.Aids.Hard.Has(g.key)
 		if g.target > 0 {
 			out = append(out, g)
 		}
@@ -165,4 +167,36 @@ func (g *goal) score(value float64) float64 {
 		s = -s
 	}
 	return math.Max(math.Min(s, 10), -10)
+}
+
+// objectiveOf is the value the objective of d minimises at the evaluated
+// result r: the supply power (W), the gate area W·L summed over every
+// transistor (m², the geometry as evaluated, so a W solved in gmid mode
+// counts), or the input-referred rms noise (V). NaN when there is none.
+func objectiveOf(obj design.Objective, d *design.Design, r *design.Result) float64 {
+	switch obj {
+	case design.ObjPower:
+		return powerOf(d, r)
+	case design.ObjArea:
+		return AreaOf(r)
+	case design.ObjNoise:
+		if r.Noise == nil {
+			return math.NaN()
+		}
+		return float64(r.Noise.InRMS)
+	}
+	return math.NaN()
+}
+
+// AreaOf is the gate area of the evaluated design, W·L summed over M1 and
+// the load or sink transistor (m²); NaN without an operating point.
+func AreaOf(r *design.Result) float64 {
+	if r == nil || r.OP == nil {
+		return math.NaN()
+	}
+	a := float64(r.OP.W) * float64(r.OP.L)
+	if r.LoadOP != nil {
+		a += float64(r.LoadOP.W) * float64(r.LoadOP.L)
+	}
+	return a
 }

@@ -29,7 +29,7 @@ func Build(s Spec) (*Built, error) {
 	if err := s.check(); err != nil {
 		return nil, err
 	}
-	dev1, err := device.New(s.Pol, s.Process.Params(s.Pol), s.Process.TNom, s.W, s.L, s.TempK)
+	dev1, err := device.New(s.Pol, s.Process.ParamsAt(s.Pol, s.L), s.Process.TNom, s.W, s.L, s.TempK)
 	if err != nil {
 		return nil, errorf("w", "transistor M1: %v", err)
 	}
@@ -95,7 +95,7 @@ func Build(s Spec) (*Built, error) {
 		c.AddResistor(name, out, loadRail, r)
 	case Active, Diode:
 		pol2 := s.loadPol()
-		dev2, err := device.New(pol2, s.Process.Params(pol2), s.Process.TNom, s.LoadW, s.LoadL, s.TempK)
+		dev2, err := device.New(pol2, s.Process.ParamsAt(pol2, s.LoadL), s.Process.TNom, s.LoadW, s.LoadL, s.TempK)
 		if err != nil {
 			return nil, errorf("lw", "load transistor M2: %v", err)
 		}

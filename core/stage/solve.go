@@ -404,7 +404,7 @@ func solveGmID(spec Spec, warmStart []float64) (*Solution, error) {
 	wmin, wmax := pr.WMin, pr.WMax
 	target := spec.GmID
 	// Start: the EKV relation gm·n·UT/ID = 2/(1+√(1+4·IC)) at n ≈ 1.3.
-	probe, err := device.New(spec.Pol, pr.Params(spec.Pol), pr.TNom, spec.W, spec.L, spec.TempK)
+	probe, err := device.New(spec.Pol, pr.ParamsAt(spec.Pol, spec.L), pr.TNom, spec.W, spec.L, spec.TempK)
 	if err != nil {
 		return nil, errorf("w", "transistor M1: %v", err)
 	}
@@ -442,9 +442,34 @@ func solveGmID(spec Spec, warmStart []float64) (*Solution, error) {
 		warm = sol.OP.V
 		return sol.Report(1).GmID, sol, nil
 	}
+	var firstErr error
 	for it := 0; it < 40; it++ {
 		g, sol, err := eval(w)
+		if err != nil && best == nil && w < wmax {
+			// No width has worked yet: the start may be too narrow to carry
+			// the current at all. Widen it; if no width up to the largest
+			// works, the first failure is the one to report.
+			if firstErr == nil {
+				firstErr = err
+			}
+			w = math.Min(wmax, 4*w)
+			continue
+		}
+		if err != nil && best != nil && w < best.Spec.W {
+			// Narrower than a width that works and unable to carry the
+			// current: far too narrow, so its gm/ID counts as below target.
+			lo = &point{math.Log(w), 0}
+			next := (lo.lw + math.Log(best.Spec.W)) / 2
+			if hi != nil {
+				next = (lo.lw + hi.lw) / 2
+			}
+			w = math.Exp(next)
+			continue
+		}
 		if err != nil {
+			if firstErr != nil {
+				return nil, firstErr
+			}
 			return nil, err
 		}
 		best = sol

@@ -73,7 +73,7 @@ type Present struct {
 // MaxPoints bounds a sweep.
 const MaxPoints = 1000
 
-// Sweep evaluates d with key (any number key or process override "n.vt0")
+// Sweep evaluates d with key (any number key or process override "n.thresh")
 // at n points from lo to hi, logarithmically spaced when the key's slider is
 // logarithmic and lo > 0, and reports every scalar figure. lo and hi must
 // lie in the key's accepted range for d.

@@ -44,3 +44,15 @@ func BenchmarkHarmonics(b *testing.B) {
 	}
 	_ = sp
 }
+
+// BenchmarkCurveHighGain: the gain-100 stage whose curve the refinement
+// fills in (about 320 levels from the 202 of the grid).
+func BenchmarkCurveHighGain(b *testing.B) {
+	d := decode(b, highGain)
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Curve(d, DefaultPoints); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -2,6 +2,7 @@ package transfer
 
 import (
 	"math"
+	"slices"
 
 	"stagewright/core/circuit"
 	"stagewright/core/design"
@@ -12,6 +13,27 @@ const DefaultPoints = 201
 
 // MaxPoints is the most input levels Curve accepts.
 const MaxPoints = 10001
+
+// StepFraction is the most, as a fraction of the supply, that the output
+// may move between neighbouring levels of a refined curve (1 %). Curve
+// bisects every interval of the uniform grid whose output step is larger.
+// At 1 % a plot of the output against the full supply (a few hundred pixels
+// tall on the page) moves at most two or three pixels per segment, so a
+// steep curve is drawn as a curve, not a cliff; and a stage with a gain of
+// 100, whose output crosses most of the supply within a few millivolts of
+// input, gets several tens of levels inside its usable range.
+const StepFraction = 0.01
+
+// RefineFactor bounds the refinement: a refined curve holds at most
+// RefineFactor times the uniform grid's levels (plus the operating point);
+// when the cap would be passed, the steepest intervals are bisected first.
+const RefineFactor = 4
+
+// minRefineStep is the narrowest input interval Curve still bisects, as a
+// fraction of the supply (1e-9: 1.8 nV on a 1.8 V supply, the precision to
+// which the ends of the range are located). A steeper step is a jump no
+// input resolution resolves.
+const minRefineStep = 1e-9
 
 // GainTolerance is how far, as a fraction of the operating point's gain,
 // the small-signal gain may move before the stage counts as having left
@@ -53,6 +75,23 @@ type Trace struct {
 	InLo, InHi, OutLo, OutHi, Swing float64
 	LimitLo, LimitHi                string // why the range ends at InLo and InHi (the Limit constants)
 
+	// The swing around the operating point, in output terms: OutOp is the
+	// output's DC level; HeadroomHi is how far the output may rise from it
+	// and HeadroomLo how far it may fall before the first transistor of the
+	// stage (any of them, M1 or the load) leaves saturation, its margin
+	// |VDS| − VDsat crossing 0 (located to 1 nV of input like the range's
+	// ends). LimitOutHi and LimitOutLo say which device ends the output's
+	// high and low end ("M2 leaves saturation"), or LimitSupply when the
+	// input reaches a rail with every device saturated. SwingSym is the
+	// symmetric swing, twice the smaller headroom: the peak-to-peak
+	// amplitude of a sine centred on the operating point that keeps every
+	// device saturated. The gain condition of the usable range plays no part
+	// here, so the headrooms may reach beyond OutLo … OutHi.
+	OutOp                  float64
+	HeadroomHi, HeadroomLo float64
+	SwingSym               float64
+	LimitOutHi, LimitOutLo string
+
 	Runs []Run // contiguous stretches of the same (M1, M2) regions
 }
 
@@ -68,7 +107,11 @@ type Run struct {
 // one more point unless it falls on the grid, with every bias voltage held
 // at the design's operating point. Each level is solved by Newton's method
 // starting from the neighbouring solution, walking outwards from the
-// operating point in both directions.
+// operating point in both directions. The curve is then refined where it
+// is steep: every interval whose output step exceeds StepFraction of the
+// supply is bisected, each new level solved from the interpolation of its
+// two neighbours' solutions, until no step is larger or the curve holds
+// RefineFactor·points levels.
 func Curve(d design.Design, points int) (Trace, error) {
 	if points == 0 {
 		points = DefaultPoints
@@ -85,7 +128,82 @@ func Curve(d design.Design, points int) (Trace, error) {
 	if err != nil {
 		return Trace{}, err
 	}
+	vin, ops, opIndex, err = t.refine(vin, ops, opIndex, RefineFactor*points+1)
+	if err != nil {
+		return Trace{}, err
+	}
 	return t.trace(vin, ops, opIndex)
+}
+
+// refine bisects every interval of the solved levels vin (solutions ops,
+// the operating point at opIndex) whose output step exceeds StepFraction
+// of the supply, pass after pass, until none does or the levels number
+// limit; a pass that would pass the limit bisects the steepest intervals
+// first. Each new level starts Newton from the linear interpolation of its
+// neighbours' node voltages, and from the lower neighbour's when that
+// fails. It returns the refined levels, solutions and operating-point index.
+func (t *tracer) refine(vin []float64, ops []circuit.OperatingPoint, opIndex, limit int) ([]float64, []circuit.OperatingPoint, int, error) {
+	maxStep := StepFraction * t.vdd
+	minGap := minRefineStep * t.vdd
+	out := t.b.Nodes["out"]
+	var wide []int
+	var warm []float64
+	for len(vin) < limit {
+		wide = wide[:0]
+		for i := 0; i+1 < len(vin); i++ {
+			if math.Abs(ops[i+1].V[out]-ops[i].V[out]) > maxStep && vin[i+1]-vin[i] > 2*minGap {
+				wide = append(wide, i)
+			}
+		}
+		if len(wide) == 0 {
+			break
+		}
+		if room := limit - len(vin); len(wide) > room {
+			step := func(i int) float64 { return math.Abs(ops[i+1].V[out] - ops[i].V[out]) }
+			slices.SortStableFunc(wide, func(a, b int) int { return cmpFloat(step(b), step(a)) })
+			wide = wide[:room]
+			slices.Sort(wide)
+		}
+		nv := make([]float64, 0, len(vin)+len(wide))
+		nops := make([]circuit.OperatingPoint, 0, len(vin)+len(wide))
+		at, k := opIndex, 0
+		for i := range vin {
+			if i == opIndex {
+				at = len(nv)
+			}
+			nv = append(nv, vin[i])
+			nops = append(nops, ops[i])
+			if k == len(wide) || wide[k] != i {
+				continue
+			}
+			k++
+			m := 0.5 * (vin[i] + vin[i+1])
+			warm = warm[:0]
+			for n := range ops[i].V {
+				warm = append(warm, 0.5*(ops[i].V[n]+ops[i+1].V[n]))
+			}
+			op, err := t.solve(m, warm)
+			if err != nil {
+				if op, err = t.solve(m, ops[i].V); err != nil {
+					return nil, nil, 0, err
+				}
+			}
+			nv = append(nv, m)
+			nops = append(nops, op)
+		}
+		vin, ops, opIndex = nv, nops, at
+	}
+	return vin, ops, opIndex, nil
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
 }
 
 // grid is points levels evenly spaced over 0 … vdd with vop put in: it
@@ -229,8 +347,95 @@ func (t *tracer) trace(vin []float64, ops []circuit.OperatingPoint, opIndex int)
 		tr.OutHi = math.Max(tr.OutHi, tr.Vout[i])
 	}
 	tr.Swing = tr.OutHi - tr.OutLo
+	if err := t.headroom(&tr, ops); err != nil {
+		return Trace{}, err
+	}
 	tr.Runs = runs(tr.Region1, tr.Region2)
 	return tr, nil
+}
+
+// worstMargin is the smallest saturation margin |VDS| − VDsat of any
+// transistor of the stage at op (V) and that transistor's index.
+func (t *tracer) worstMargin(op *circuit.OperatingPoint) (float64, int) {
+	worst, at := math.Inf(1), -1
+	v := op.V
+	for i := range t.b.C.FETs {
+		f := &t.b.C.FETs[i]
+		if m := f.Dev.Report(v[f.D], v[f.G], v[f.S], v[f.B]).Margin; m < worst {
+			worst, at = m, i
+		}
+	}
+	return worst, at
+}
+
+// headroom fills the swing around the operating point: in each direction
+// of the input it walks the solved levels until a transistor's margin is
+// negative, locates where the first one crosses 0 between the last
+// saturated level and that one, and takes the output's extremes over the
+// saturated stretch.
+func (t *tracer) headroom(tr *Trace, ops []circuit.OperatingPoint) error {
+	i0 := tr.OpIndex
+	tr.OutOp = tr.Vout[i0]
+	lo, hi := tr.OutOp, tr.OutOp
+	limits := [2]string{}
+	outs := [2]float64{}
+	if m, k := t.worstMargin(&ops[i0]); m < 0 {
+		name := t.b.C.FETs[k].Name + " leaves saturation"
+		tr.LimitOutHi, tr.LimitOutLo = name, name
+		return nil
+	}
+	for side, dir := range [2]int{-1, +1} {
+		i := i0
+		limits[side], outs[side] = LimitSupply, tr.Vout[i0]
+		for j := i0 + dir; j >= 0 && j < len(ops); j += dir {
+			m, _ := t.worstMargin(&ops[j])
+			if m >= 0 {
+				i = j
+				lo, hi = math.Min(lo, tr.Vout[j]), math.Max(hi, tr.Vout[j])
+				continue
+			}
+			// The first device to leave saturation between levels i and j:
+			// of those with a negative margin at j, the one whose crossing
+			// lies nearest to i.
+			best := math.Inf(1)
+			for k := range t.b.C.FETs {
+				f := &t.b.C.FETs[k]
+				margin := func(op circuit.OperatingPoint) (float64, error) {
+					v := op.V
+					return f.Dev.Report(v[f.D], v[f.G], v[f.S], v[f.B]).Margin, nil
+				}
+				fa, _ := margin(ops[i])
+				fb, _ := margin(ops[j])
+				if fb >= 0 {
+					continue
+				}
+				v, op, err := t.crossing(margin, tr.Vin[i], fa, tr.Vin[j], fb, ops[i].V)
+				if err != nil {
+					return err
+				}
+				if d := math.Abs(v - tr.Vin[i]); d < best {
+					best = d
+					limits[side] = f.Name + " leaves saturation"
+					outs[side] = t.out(&op)
+				}
+			}
+			break
+		}
+		if limits[side] == LimitSupply {
+			outs[side] = tr.Vout[i]
+		}
+	}
+	// Which input direction ends the output's high end: the one whose end
+	// lies higher (the input's low end for an inverting stage).
+	hiSide := 1
+	if outs[0] > outs[1] {
+		hiSide = 0
+	}
+	lo, hi = math.Min(lo, math.Min(outs[0], outs[1])), math.Max(hi, math.Max(outs[0], outs[1]))
+	tr.HeadroomHi, tr.HeadroomLo = hi-tr.OutOp, tr.OutOp-lo
+	tr.LimitOutHi, tr.LimitOutLo = limits[hiSide], limits[1-hiSide]
+	tr.SwingSym = 2 * math.Min(tr.HeadroomHi, tr.HeadroomLo)
+	return nil
 }
 
 // end is one end of the usable range: the input and output levels there,
@@ -259,7 +464,11 @@ func (t *tracer) edge(tr *Trace, ops []circuit.OperatingPoint, conds []condition
 			if conds[j][k] >= 0 {
 				continue
 			}
-			v, op, err := t.crossing(k, tr.Vin[i], conds[i][k], tr.Vin[j], conds[j][k], ops[i].V, gain0)
+			cond := func(op circuit.OperatingPoint) (float64, error) {
+				c, _, err := t.check(op, gain0)
+				return c[k], err
+			}
+			v, op, err := t.crossing(cond, tr.Vin[i], conds[i][k], tr.Vin[j], conds[j][k], ops[i].V)
 			if err != nil {
 				return end{}, err
 			}
@@ -277,11 +486,12 @@ func (t *tracer) edge(tr *Trace, ops []circuit.OperatingPoint, conds []condition
 	return end{in: tr.Vin[i], out: tr.Vout[i], limit: LimitSupply, last: i}, nil
 }
 
-// crossing finds where condition k changes sign between the input level a
-// (where it holds, value fa ≥ 0) and b (fb < 0), by the Illinois variant of
-// regula falsi, each level solved from warm. It returns the level on the
-// holding side within 1 nV of the crossing and the solution there.
-func (t *tracer) crossing(k int, a, fa, b, fb float64, warm []float64, gain0 float64) (float64, circuit.OperatingPoint, error) {
+// crossing finds where the condition cond changes sign between the input
+// level a (where it holds, value fa ≥ 0) and b (fb < 0), by the Illinois
+// variant of regula falsi, each level solved from warm. It returns the
+// level on the holding side within 1 nV of the crossing and the solution
+// there.
+func (t *tracer) crossing(cond func(circuit.OperatingPoint) (float64, error), a, fa, b, fb float64, warm []float64) (float64, circuit.OperatingPoint, error) {
 	opA, err := t.solve(a, warm)
 	if err != nil {
 		return 0, opA, err
@@ -296,11 +506,11 @@ func (t *tracer) crossing(k int, a, fa, b, fb float64, warm []float64, gain0 flo
 		if err != nil {
 			return 0, op, err
 		}
-		c, _, err := t.check(op, gain0)
+		fm, err := cond(op)
 		if err != nil {
 			return 0, op, err
 		}
-		if fm := c[k]; fm >= 0 {
+		if fm >= 0 {
 			a, fa, opA = m, fm, op
 			if side == +1 {
 				fb /= 2

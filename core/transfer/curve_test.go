@@ -310,8 +310,21 @@ func TestCurveRunsAndGrid(t *testing.T) {
 			if err != nil {
 				t.Fatal(c.name, err)
 			}
-			if n := len(tr.Vin); n != points && n != points+1 {
+			// The uniform grid (and the operating point) is kept; the
+			// refinement adds at most RefineFactor·points levels in all.
+			if n := len(tr.Vin); n < points || n > RefineFactor*points+1 {
 				t.Fatalf("%s: %d points for %d asked", c.name, n, points)
+			}
+			vdd := tr.Vin[len(tr.Vin)-1]
+			for k, j := 0, 0; k < points; k++ {
+				v := vdd * float64(k) / float64(points-1) // the grid level k, as grid computes it
+				for j < len(tr.Vin) && tr.Vin[j] < v-1e-6*vdd/float64(points-1) {
+					j++
+				}
+				// The operating point replaces a level within a millionth of the spacing.
+				if j == len(tr.Vin) || math.Abs(tr.Vin[j]-v) > 1e-6*vdd/float64(points-1) {
+					t.Fatalf("%s: the grid level %g V (%d of %d) is missing from the refined curve", c.name, v, k, points)
+				}
 			}
 			if tr.Vin[0] != 0 && tr.OpIndex != 0 || tr.Vin[len(tr.Vin)-1] < tr.Vin[tr.OpIndex] {
 				t.Errorf("%s: grid does not span 0 … VDD: %g … %g", c.name, tr.Vin[0], tr.Vin[len(tr.Vin)-1])

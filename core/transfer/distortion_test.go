@@ -176,7 +176,7 @@ func TestJSONShapes(t *testing.T) {
 		v    any
 		keys string
 	}{
-		{tr, "gain in_hi in_lo limit_hi limit_lo op_index out_hi out_lo region1 region2 runs swing vin vout"},
+		{tr, "gain headroom_hi headroom_lo in_hi in_lo limit_hi limit_lo limit_out_hi limit_out_lo op_index out_hi out_lo out_op region1 region2 runs swing swing_sym vin vout"},
 		{l, "amp hd2 hd2_db hd3 hd3_db small_signal_ok taylor_hd2 taylor_hd3 thd thd_db"},
 	} {
 		b, err := json.Marshal(c.v)

@@ -26,18 +26,30 @@ type traceJSON struct {
 	Swing   design.Num    `json:"swing"`
 	LimitLo string        `json:"limit_lo"`
 	LimitHi string        `json:"limit_hi"`
-	Runs    []runJSON     `json:"runs"`
+
+	OutOp      design.Num `json:"out_op"`
+	HeadroomHi design.Num `json:"headroom_hi"`
+	HeadroomLo design.Num `json:"headroom_lo"`
+	SwingSym   design.Num `json:"swing_sym"`
+	LimitOutHi string     `json:"limit_out_hi"`
+	LimitOutLo string     `json:"limit_out_lo"`
+
+	Runs []runJSON `json:"runs"`
 }
 
 // MarshalJSON writes the curve as {vin, vout, gain, region1, region2,
 // op_index, in_lo, in_hi, out_lo, out_hi, swing, limit_lo, limit_hi,
+// out_op, headroom_hi, headroom_lo, swing_sym, limit_out_hi, limit_out_lo,
 // runs: [{from, to, region1, region2}]}, non-finite numbers as null.
 func (tr Trace) MarshalJSON() ([]byte, error) {
 	j := traceJSON{
 		Vin: tr.Vin, Vout: tr.Vout, Gain: tr.Gain, Region1: tr.Region1, Region2: tr.Region2,
 		OpIndex: tr.OpIndex, InLo: design.Num(tr.InLo), InHi: design.Num(tr.InHi),
 		OutLo: design.Num(tr.OutLo), OutHi: design.Num(tr.OutHi), Swing: design.Num(tr.Swing),
-		LimitLo: tr.LimitLo, LimitHi: tr.LimitHi, Runs: make([]runJSON, len(tr.Runs)),
+		LimitLo: tr.LimitLo, LimitHi: tr.LimitHi,
+		OutOp: design.Num(tr.OutOp), HeadroomHi: design.Num(tr.HeadroomHi), HeadroomLo: design.Num(tr.HeadroomLo),
+		SwingSym: design.Num(tr.SwingSym), LimitOutHi: tr.LimitOutHi, LimitOutLo: tr.LimitOutLo,
+		Runs: make([]runJSON, len(tr.Runs)),
 	}
 	if j.Region1 == nil {
 		j.Region1 = []string{}

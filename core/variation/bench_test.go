@@ -39,3 +39,41 @@ func BenchmarkCorners(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkCornerTable is the whole corner table of a current-biased
+// stage held by a mirror: 5 corners × 3 temperatures × 3 supplies (budget
+// 100 ms natively).
+func BenchmarkCornerTable(b *testing.B) {
+	d, err := design.Decode("stage=cs&pol=n&load=active&bias=id&id=100u&vout=0.9&w=10u&l=1u&lw=10u&ll=1u")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		rows, err := Corners(d)
+		if err != nil || len(rows) != 45 {
+			b.Fatal(err, len(rows))
+		}
+	}
+}
+
+// BenchmarkMonteCarloHold is 10,000 samples of a current-biased stage with
+// a current-source load, its bias held each way (budget for the mirror,
+// which solves two diode-connected copies per sample: 400 ms).
+func BenchmarkMonteCarloHold(b *testing.B) {
+	for _, hold := range []string{"ideal", "fixed", "mirror"} {
+		d, err := design.Decode("stage=cs&pol=n&load=active&bias=id&id=100u&vout=0.9&w=10u&l=1u&lw=10u&ll=1u&hold=" + hold)
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.Run(hold, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				r, err := MonteCarlo(d, 10000, 1, nil)
+				if err != nil || r.Samples != 10000 {
+					b.Fatal(err, r.Samples)
+				}
+			}
+		})
+	}
+}

@@ -2,6 +2,7 @@ package variation
 
 import (
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -9,22 +10,28 @@ import (
 	"stagewright/core/device"
 )
 
+// findRow returns the row of a corner and temperature at the nominal
+// supply (the middle of the rows of that corner and temperature).
 func findRow(t *testing.T, rows []CornerRow, corner string, temp float64) CornerRow {
 	t.Helper()
+	var at []CornerRow
 	for _, r := range rows {
 		if r.Corner == corner && float64(r.Temp) == temp {
-			return r
+			at = append(at, r)
 		}
 	}
-	t.Fatalf("no row %s at %g °C", corner, temp)
-	return CornerRow{}
+	if len(at) == 0 {
+		t.Fatalf("no row %s at %g °C", corner, temp)
+	}
+	return at[len(at)/2]
 }
 
 // TestCornersTypicalIsPlain: the tt row at the design's own temperature
-// is the plain evaluation, exactly, for bias vin and bias id.
+// and supply is the plain evaluation, exactly, for bias vin and for bias
+// id held ideally.
 func TestCornersTypicalIsPlain(t *testing.T) {
 	for _, frag := range testFragments {
-		d := decode(t, frag)
+		d := decode(t, frag+"&hold=ideal")
 		if d.Bias == design.BiasGmID {
 			continue
 		}
@@ -32,13 +39,17 @@ func TestCornersTypicalIsPlain(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if len(rows) != 15 {
-			t.Errorf("%s: %d rows, want 5 corners × 3 temperatures", frag, len(rows))
+		if len(rows) != 45 {
+			t.Errorf("%s: %d rows, want 5 corners × 3 temperatures × 3 supplies", frag, len(rows))
 		}
 		got := findRow(t, rows, "tt", 27)
-		want := cornerRow("tt", 27, design.Evaluate(d))
-		if got != want {
+		r := design.Evaluate(d)
+		want := cornerRow("tt", 27, d.VDD, float64(r.Nodes["out"]), d.Stage == design.SourceFollower, r)
+		if !reflect.DeepEqual(got, want) {
 			t.Errorf("%s: tt row\n%+v\nplain\n%+v", frag, got, want)
+		}
+		if got.VOutDrift != 0 {
+			t.Errorf("%s: the nominal row drifts by %g V", frag, float64(got.VOutDrift))
 		}
 	}
 }
@@ -66,7 +77,7 @@ func TestCornersDirection(t *testing.T) {
 			t.Errorf("%g °C: sf %g vs ss %g, fs %g vs ff %g", temp, float64(sf.ID), float64(ss.ID), float64(fs.ID), float64(ff.ID))
 		}
 	}
-	did := decode(t, "v=1&stage=cs&pol=p&bias=id&id=50u&load=active&vout=0.9")
+	did := decode(t, "v=1&stage=cs&pol=p&bias=id&id=50u&load=active&vout=0.9&hold=ideal")
 	rows, err = Corners(did)
 	if err != nil {
 		t.Fatal(err)
@@ -88,12 +99,13 @@ func TestCornersRowDesign(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 20 {
-		t.Errorf("%d rows, want 5 corners × 4 temperatures", len(rows))
+	if len(rows) != 60 {
+		t.Errorf("%d rows, want 5 corners × 4 temperatures × 3 supplies", len(rows))
 	}
-	for i := 1; i < 4; i++ {
-		if rows[i].Temp <= rows[i-1].Temp {
-			t.Errorf("temperatures not ascending: %v, %v", rows[i-1].Temp, rows[i].Temp)
+	for i := 1; i < 12; i++ {
+		a, b := rows[i-1], rows[i]
+		if b.Temp < a.Temp || (b.Temp == a.Temp && b.VDD <= a.VDD) {
+			t.Errorf("rows not by temperature, then supply: %v/%v, %v/%v", a.Temp, a.VDD, b.Temp, b.VDD)
 		}
 	}
 	pr, _ := d.ProcessOf()
@@ -111,7 +123,8 @@ func TestCornersRowDesign(t *testing.T) {
 		if dr.Temp != float64(r.Temp) || got.N.LambdaL != 0.03e-6 {
 			t.Errorf("%s: temperature %g or own override lost", r.Design, dr.Temp)
 		}
-		if again := cornerRow(r.Corner, float64(r.Temp), design.Evaluate(dr)); again != r {
+		nominal := design.Evaluate(d)
+		if again := cornerRow(r.Corner, float64(r.Temp), float64(r.VDD), float64(nominal.Nodes["out"]), false, design.Evaluate(dr)); !reflect.DeepEqual(again, r) {
 			t.Errorf("%s: reopened row differs", r.Design)
 		}
 	}
@@ -121,7 +134,7 @@ func TestCornersRowDesign(t *testing.T) {
 // its temperature matches the plain evaluation to the search tolerance of
 // gm/ID (1e-6 relative, so figures within 1e-4).
 func TestCornersGmID(t *testing.T) {
-	d := decode(t, "v=1&stage=cs&pol=n&bias=gmid&gmid=15&id=20u&load=r&rd=20k")
+	d := decode(t, "v=1&stage=cs&pol=n&bias=gmid&gmid=15&id=20u&load=r&rd=20k&hold=ideal")
 	rows, err := Corners(d)
 	if err != nil {
 		t.Fatal(err)
@@ -148,9 +161,13 @@ func TestCornersErrorsAndFailures(t *testing.T) {
 	}
 	// More current than the resistor allows: every row fails, none panics,
 	// figures are null.
-	rows, err := Corners(decode(t, "v=1&stage=cs&pol=n&bias=id&id=10m&load=r&rd=100k"))
+	rows, err := Corners(decode(t, "v=1&stage=cs&pol=n&bias=id&id=10m&load=r&rd=100k&hold=ideal"))
 	if err != nil {
 		t.Fatal(err)
+	}
+	if _, err := Corners(decode(t, "v=1&stage=cs&pol=n&bias=id&id=10m&load=r&rd=100k")); err == nil ||
+		!strings.Contains(err.Error(), "no bias to hold") {
+		t.Errorf("a held design with no nominal operating point: %v", err)
 	}
 	for _, r := range rows {
 		if r.OK || r.Error == nil || r.Gain.Finite() || r.ID.Finite() {

@@ -21,14 +21,16 @@ func ExampleMonteCarlo() {
 	// Output: ID = 114.9 µA ± 12 µA, no operating point 0, yield of |gain| ≥ 3.9: 0.505
 }
 
-// The typical corner of a demo design at the three temperatures: at this
-// low overdrive the falling threshold wins over the falling mobility, so
-// the current rises with temperature.
+// The typical corner of a demo design at the three temperatures and the
+// nominal supply: at this low overdrive the falling threshold wins over the
+// falling mobility, so the current rises with temperature.
 func ExampleCorners() {
 	d, _ := design.Decode("v=1&stage=cs&pol=n&bias=vin&vin=0.7&load=r&rd=5k")
 	rows, _ := variation.Corners(d)
-	for _, r := range rows[:3] {
-		fmt.Printf("%s %4g °C  ID %.4g µA  gain %.4g\n", r.Corner, float64(r.Temp), 1e6*float64(r.ID), float64(r.Gain))
+	for _, r := range rows[:9] {
+		if r.VDD == 1.8 {
+			fmt.Printf("%s %4g °C  ID %.4g µA  gain %.4g\n", r.Corner, float64(r.Temp), 1e6*float64(r.ID), float64(r.Gain))
+		}
 	}
 	// Output:
 	// tt  -40 °C  ID 93.7 µA  gain -4.377

@@ -36,7 +36,7 @@ func TestPelgromLoadDevice(t *testing.T) {
 	}
 	voutAt := func(key string, v float64) float64 {
 		dd := d
-		dd.Overrides = []design.Override{{Key: key, Value: v}}
+		dd.Overrides = []design.Override{{Key: design.CanonicalKey(key), Value: v}}
 		res := design.Evaluate(dd)
 		if !res.OK {
 			t.Fatal(res.Error)
@@ -44,8 +44,8 @@ func TestPelgromLoadDevice(t *testing.T) {
 		return float64(res.Nodes["out"])
 	}
 	const dv = 1e-4 // V: central-difference error ∝ dv², negligible
-	s1 := (voutAt("n.vt0", pr.N.VT0+dv) - voutAt("n.vt0", pr.N.VT0-dv)) / (2 * dv)
-	s2 := (voutAt("p.vt0", pr.P.VT0+dv) - voutAt("p.vt0", pr.P.VT0-dv)) / (2 * dv)
+	s1 := (voutAt("n.thresh", pr.N.VT0+dv) - voutAt("n.thresh", pr.N.VT0-dv)) / (2 * dv)
+	s2 := (voutAt("p.thresh", pr.P.VT0+dv) - voutAt("p.thresh", pr.P.VT0-dv)) / (2 * dv)
 	sig1 := pr.Spread(device.NMOS).AVT / math.Sqrt(40e-6*2e-6)
 	sig2 := pr.Spread(device.PMOS).AVT / math.Sqrt(1e-6*0.5e-6)
 	want := math.Hypot(s1*sig1, s2*sig2)

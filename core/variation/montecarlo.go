@@ -24,7 +24,7 @@ type Targets struct {
 	MaxPower  float64 // maximum supply power
 	MinSwing  float64 // minimum output swing: not counted per sample (see Covered)
 	MaxNoise  float64 // maximum input-referred rms noise: not counted per sample (see Covered)
-	MinMargin float64 // minimum saturation margin |VDS| − VDsat of M1
+	MinMargin float64 // minimum saturation margin |VDS| − VDsat of every transistor
 }
 
 // Options set up a Monte Carlo run beyond the design itself.
@@ -133,19 +133,23 @@ func MonteCarloWith(d design.Design, o Options) (res MCResult, err error) {
 	dvt := make([]float64, 0, n)
 	rng := rand.New(rand.NewSource(o.Seed))
 	block := max(1, n/100)
-	var z [8]float64
+	var z [12]float64
+	draws := 8 // the mirror copies take four more; the stream is fixed by the design, not by results
+	if m.hold == "mirror" {
+		draws = 12
+	}
 	for i := 0; i < n; i++ {
-		for k := range z {
-			z[k] = rng.NormFloat64() // always all eight, so the stream does not depend on the results
+		for k := range z[:draws] {
+			z[k] = rng.NormFloat64()
 		}
 		if o.NoGlobal {
 			z[0], z[1], z[2], z[3] = 0, 0, 0, 0
 		}
 		if o.NoMismatch {
-			z[4], z[5], z[6], z[7] = 0, 0, 0, 0
+			z[4], z[5], z[6], z[7], z[8], z[9], z[10], z[11] = 0, 0, 0, 0, 0, 0, 0, 0
 		}
 		if o.NoBetaMismatch {
-			z[5], z[7] = 0, 0
+			z[5], z[7], z[9], z[11] = 0, 0, 0, 0
 		}
 		s, ok := m.sample(&z, d.FMin, math.Max(d.FMax, 10*t.MinF3dB))
 		res.Samples++
@@ -239,6 +243,16 @@ type sampler struct {
 	area1  float64          // m², W·L of M1
 	area2  float64          // m², of M2
 	nomPar [2]device.Params // nominal parameters of M1's and M2's polarity
+
+	// A current bias held by a mirror: each copy (M1's, the load's) is
+	// drawn with the global shift and its own mismatch, and its VGS at iref
+	// sets the gate of the device it biases.
+	hold                 string // "ideal", "fixed" or "mirror"
+	iref                 float64
+	vgs0                 [2]float64 // nominal |VGS| of M1 and the load: Newton's start for the copies
+	mirrorM1, mirrorLoad bool
+	near                 func(v float64) float64 // a level from M1's near rail as a node voltage
+	loadNear             func(v float64) float64 // the same for the load's rail
 }
 
 type sampleResult struct {
@@ -259,11 +273,32 @@ func newSampler(d design.Design) (*sampler, error) {
 	if spec.Bias == stage.ByGmID {
 		spec.Bias = stage.ByID
 	}
+	m := &sampler{hold: "ideal"}
+	if spec.Bias == stage.ByID && d.Aids.Hold != "ideal" && d.Aids.Hold != "" {
+		// Held: the nominal bias levels become fixed sources (vin mode),
+		// which a mirror then moves sample by sample.
+		m.hold, m.iref = d.Aids.Hold, math.Abs(sol.Report(1).ID)
+		if !(spec.Kind == stage.SF && spec.Load == stage.Active) {
+			spec.Vin = sol.OP.Source[sol.Input]
+		}
+		if spec.Load == stage.Active {
+			spec.LoadVB = math.Abs(sol.Report(2).VGS)
+		}
+		m.vgs0 = [2]float64{math.Abs(sol.Report(1).VGS), spec.LoadVB}
+		spec.Bias = stage.ByVin
+		m.mirrorM1 = m.hold == "mirror" && spec.Kind == stage.CS
+		m.mirrorLoad = m.hold == "mirror" && spec.Load == stage.Active
+		vdd := spec.VDD
+		m.near = func(v float64) float64 { return v }
+		if spec.Pol == device.PMOS {
+			m.near = func(v float64) float64 { return vdd - v }
+		}
+	}
 	b, err := stage.Build(spec)
 	if err != nil {
 		return nil, err
 	}
-	m := &sampler{spec: spec, pr: spec.Process, b: b, guess: circuit.Guess{}}
+	m.spec, m.pr, m.b, m.guess = spec, spec.Process, b, circuit.Guess{}
 	if len(sol.OP.V) == b.C.NodeCount() {
 		for i, v := range sol.OP.V {
 			m.guess[circuit.Node(i)] = v
@@ -279,14 +314,58 @@ func newSampler(d design.Design) (*sampler, error) {
 	}
 	m.sp1 = m.pr.Spread(spec.Pol)
 	m.area1 = spec.W * spec.L
-	m.nomPar[0] = m.pr.Params(spec.Pol)
+	m.nomPar[0] = m.pr.ParamsAt(spec.Pol, spec.L)
 	if b.M2 >= 0 {
 		m.pol2 = b.Dev2.Polarity()
 		m.sp2 = m.pr.Spread(m.pol2)
 		m.area2 = spec.LoadW * spec.LoadL
-		m.nomPar[1] = m.pr.Params(m.pol2)
+		m.nomPar[1] = m.pr.ParamsAt(m.pol2, spec.LoadL)
+		vdd := spec.VDD
+		m.loadNear = func(v float64) float64 { return v }
+		if m.pol2 == device.PMOS {
+			m.loadNear = func(v float64) float64 { return vdd - v }
+		}
 	}
 	return m, nil
+}
+
+// diodeVGS returns |VGS| of a diode-connected device with parameters p
+// carrying i, source and bulk on its rail: Newton's method from start on
+// the diode's current, whose slope is gm + gds, kept inside 0 … vmax, and
+// bisection over 0 … vmax if Newton has not settled in a dozen steps.
+func diodeVGS(pol device.Polarity, p device.Params, tnom, w, l, tempK, i, start, vmax float64) (float64, bool) {
+	dev, err := device.New(pol, p, tnom, w, l, tempK)
+	if err != nil {
+		return 0, false
+	}
+	s := float64(pol)
+	v := math.Min(math.Max(start, 0), vmax)
+	for range 12 {
+		e := dev.Current(s*v, s*v, 0, 0)
+		f := math.Abs(e.ID) - i
+		if math.Abs(f) <= 1e-10*i { // the servo's own tolerance is 1e-9
+			return v, true
+		}
+		slope := e.GM + e.GDS
+		if !(slope > 0) {
+			break
+		}
+		v = math.Min(math.Max(v-f/slope, 0), vmax)
+	}
+	at := func(v float64) float64 { return math.Abs(dev.Current(s*v, s*v, 0, 0).ID) }
+	if at(vmax) < i {
+		return 0, false
+	}
+	lo, hi := 0.0, vmax
+	for range 48 { // 2^-48 of the supply, below 1e-14 V
+		mid := (lo + hi) / 2
+		if at(mid) < i {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (lo + hi) / 2, true
 }
 
 // globalIndex is where a polarity's global draws sit in z: n-channel 0, 1;
@@ -300,7 +379,7 @@ func globalIndex(p device.Polarity) int {
 
 // vary returns nominal parameters moved by the global draws of their
 // polarity and the device's own mismatch draws (z[m], z[m+1]).
-func vary(nom device.Params, sp device.Spread, pol device.Polarity, area float64, z *[8]float64, m int) (device.Params, float64) {
+func vary(nom device.Params, sp device.Spread, pol device.Polarity, area float64, z *[12]float64, m int) (device.Params, float64) {
 	g := globalIndex(pol)
 	sm := 1 / math.Sqrt(area)
 	dvt := sp.SigmaVT*z[g] + sp.AVT*sm*z[m]
@@ -311,7 +390,7 @@ func vary(nom device.Params, sp device.Spread, pol device.Polarity, area float64
 }
 
 // sample evaluates one draw; ok is false when there is no operating point.
-func (m *sampler) sample(z *[8]float64, fmin, fmax float64) (sampleResult, bool) {
+func (m *sampler) sample(z *[12]float64, fmin, fmax float64) (sampleResult, bool) {
 	nan := math.NaN()
 	r := sampleResult{gain: nan, f3db: nan, id: nan, vout: nan, idd: nan, power: nan, margin: nan}
 	s := &m.spec
@@ -331,6 +410,22 @@ func (m *sampler) sample(z *[8]float64, fmin, fmax float64) (sampleResult, bool)
 		*m.b.Dev2 = dev2
 	}
 	c := m.b.C
+	if m.mirrorM1 {
+		pr, _ := vary(m.nomPar[0], m.sp1, s.Pol, m.area1, z, 8)
+		vgs, ok := diodeVGS(s.Pol, pr, m.pr.TNom, s.W, s.L, s.TempK, m.iref, m.vgs0[0], s.VDD)
+		if !ok {
+			return r, false
+		}
+		c.VSources[m.b.Input].V = m.near(vgs + m.iref*s.RS)
+	}
+	if m.mirrorLoad {
+		pr, _ := vary(m.nomPar[1], m.sp2, m.pol2, m.area2, z, 10)
+		vgs, ok := diodeVGS(m.pol2, pr, m.pr.TNom, s.LoadW, s.LoadL, s.TempK, m.iref, m.vgs0[1], s.VDD)
+		if !ok {
+			return r, false
+		}
+		c.VSources[m.b.BiasSrc].V = m.loadNear(vgs)
+	}
 	op, err := c.SolveDC(m.guess, circuit.Options{})
 	if err != nil {
 		return r, false
@@ -345,6 +440,10 @@ func (m *sampler) sample(z *[8]float64, fmin, fmax float64) (sampleResult, bool)
 	v := op.V
 	rep := f1.Dev.Report(v[f1.D], v[f1.G], v[f1.S], v[f1.B])
 	r.id, r.margin = rep.ID, rep.Margin
+	if m.b.M2 >= 0 { // the margin counts every device
+		f2 := c.FETs[m.b.M2]
+		r.margin = math.Min(r.margin, f2.Dev.Report(v[f2.D], v[f2.G], v[f2.S], v[f2.B]).Margin)
+	}
 	r.vout = v[m.b.Ports.Out]
 	r.idd = -op.Branch[m.b.Supply]
 	r.power = s.VDD * r.idd

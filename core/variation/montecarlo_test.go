@@ -19,7 +19,7 @@ func relSE4(n int) float64 { return 4 / math.Sqrt(2*float64(n)) }
 // design, so the statistics must equal design.Evaluate's figures.
 func TestMonteCarloNominal(t *testing.T) {
 	for _, frag := range testFragments {
-		d := decode(t, frag+"&ppd=20")
+		d := decode(t, frag+"&ppd=20&hold=ideal")
 		res := design.Evaluate(d)
 		r, err := MonteCarloWith(d, Options{Samples: 5, Seed: 1, NoGlobal: true, NoMismatch: true})
 		if err != nil {
@@ -52,7 +52,7 @@ func TestMonteCarloNominal(t *testing.T) {
 // known normal law: with mismatch off, ΔVT of M1 is N(0, SigmaVT); mean
 // within 4σ/√n and σ within 4/√(2n) relative (common practice).
 func TestMonteCarloGlobalVT(t *testing.T) {
-	d := decode(t, testFragments[1])
+	d := decode(t, testFragments[1]+"&hold=ideal")
 	const n = 4000
 	r, err := MonteCarloWith(d, Options{Samples: n, Seed: 7, NoMismatch: true})
 	if err != nil {
@@ -109,7 +109,7 @@ func TestPelgromScaling(t *testing.T) {
 		}
 		idAt := func(dv float64) float64 {
 			dd := d
-			dd.Overrides = []design.Override{{Key: "n.vt0", Value: pr.N.VT0 + dv}}
+			dd.Overrides = []design.Override{{Key: "n.thresh", Value: pr.N.VT0 + dv}}
 			res := design.Evaluate(dd)
 			if !res.OK {
 				t.Fatal(res.Error)

@@ -12,6 +12,7 @@ import { parseSI, exactSI, formatSI } from './si.js';
 import { h, clear } from './dom.js';
 import { startAids } from './aids/index.js';
 import { startSaved } from './saved.js';
+import { startProcess } from './process/index.js';
 
 const $ = (id) => document.getElementById(id);
 const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
@@ -23,7 +24,11 @@ const STRUCTURAL = ['stage', 'pol', 'load', 'bias', 'proc'];
 const aidEngine = {
   ready: null,
   call(method, ...args) {
-    return (this.ready || Promise.resolve(state.engine)).then((e) => e.call(method, ...args));
+    return this.pin().then((e) => e.call(method, ...args));
+  },
+  /** The engine calls go to now; a job keeps it for all its steps (its run lives in that engine). */
+  pin() {
+    return this.ready || Promise.resolve(state.engine);
   },
   start(module) {
     if (this.ready || !module) return;
@@ -414,6 +419,13 @@ async function main() {
     open: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); },
   });
   state.aids = startAids({ engine: aidEngine, plots: state.plots, schema: () => state.schema, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  // "Your process" (process/index.js): after the design aids, reached from the header too
+  const proc = startProcess({ engine: aidEngine, download, canonical: () => state.canonical, go: (f) => { writeLink(f, true); evaluate(f, { fromLink: false }); } });
+  document.querySelector('.results').appendChild(proc.section);
+  $('goto-proc').addEventListener('click', () => {
+    proc.section.scrollIntoView({ block: 'start' });
+    $('proc-file').focus({ preventScroll: true });
+  });
   let schemaReady;
   let info;
   try {

@@ -117,6 +117,22 @@ export function renderOP(box, r) {
       ),
     );
   }
+  const sl = r.large_signal && r.large_signal.slew;
+  if (sl) {
+    // V/µs reads as designers quote slew; the current behind each is the stage's own.
+    const perUs = (v) => (v == null ? '—' : `${(v / 1e6).toPrecision(3)} V/µs`);
+    parts.push(
+      h(
+        'table',
+        { class: 'grid compact', id: 'slew-table' },
+        h('caption', { text: 'Slew rate into cl' }),
+        h('tbody', {}, [
+          h('tr', {}, h('th', { scope: 'row', text: 'rising' }), h('td', { class: 'num', text: perUs(sl.up) }), h('td', { class: 'num', text: num(sl.i_up, 'A') })),
+          h('tr', {}, h('th', { scope: 'row', text: 'falling' }), h('td', { class: 'num', text: perUs(sl.down) }), h('td', { class: 'num', text: num(sl.i_down, 'A') })),
+        ]),
+      ),
+    );
+  }
   morph(box, parts);
   sizeBars(box);
 }

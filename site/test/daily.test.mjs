@@ -84,11 +84,11 @@ test('the override summary counts what the design sets; a compound unit gets no 
   await open(page, 'v=1&stage=cs&n.kf=2e-25&p.vt0=0.5');
   assert.match(await page.textContent('#overrides-summary'), /\(2 changed of \d+\)/);
   await page.click('#overrides-summary');
-  // kf is in V²·F: 2e-25, never "200y" or "2e-10f".
-  assert.equal(await page.inputValue('#k-n-kf'), '2e-25');
+  // The link's old name kf reads as flicker, in V²·F: 2e-25, never "200y" or "2e-10f".
+  assert.equal(await page.inputValue('#k-n-flicker'), '2e-25');
   await open(page, 'v=1&stage=cs');
   await page.click('#overrides-summary');
-  assert.equal(await page.inputValue('#k-n-kf'), '1e-25');
+  assert.equal(await page.inputValue('#k-n-flicker'), '1e-25');
 });
 
 test('Monte Carlo says what Run will do before the first run, and draws no empty frames', async () => {

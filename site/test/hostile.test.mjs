@@ -295,7 +295,8 @@ async function answered(page, previous, timeout = 15000) {
 // ---------------------------------------------------------------- tests
 
 test('200 hostile fragments from the key schema, each loaded from disk', { timeout: 300000 }, async (t) => {
-  assert.equal(cases.length, 200, `made ${cases.length} cases`);
+  // One case per key of the schema and the rest fixed: at least the 200 the page promises.
+  assert.ok(cases.length >= 200, `made ${cases.length} cases`);
   const keysCovered = new Set(cases.filter((c) => c.kind === 'javascript').flatMap((c) => c.bad));
   for (const k of schema) assert.ok(keysCovered.has(k.key), `key ${k.key} not covered`);
   // One page, one case after another (two pages side by side were slower on two cores).

@@ -89,7 +89,7 @@ func opFailureCode(err error) string {
 
 // decodeFor decodes a fragment strictly: any problem is a design error.
 func decodeFor(cmd, frag string, stdout, stderr io.Writer) (design.Design, int) {
-	d, err := design.Decode(frag)
+	d, err := design.Decode(onProcess(frag))
 	if err != nil {
 		key := ""
 		var fe *design.FragmentError
@@ -104,7 +104,7 @@ func decodeFor(cmd, frag string, stdout, stderr io.Writer) (design.Design, int) 
 // decodeArg decodes the fragment of an aid command; a problem is a design
 // error (status 1).
 func decodeArg(cmd, frag string, stderr io.Writer) (design.Design, bool) {
-	d, err := design.Decode(frag)
+	d, err := design.Decode(onProcess(frag))
 	if err != nil {
 		fmt.Fprintf(stderr, "stagewright %s: %v\n", cmd, err)
 		return d, false

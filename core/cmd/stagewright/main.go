@@ -11,6 +11,8 @@
 //	stagewright charts FRAGMENT                          gm/ID design charts for the process and L
 //	stagewright sweep FRAGMENT -key w -lo 1u -hi 100u    every figure against one input
 //	stagewright compare FRAGMENT                         A/B table against the pinned design (pin=…)
+//	stagewright fit FILE -pol n|p [-process NAME -o F]   fit the model to characterization data
+//	stagewright eval -process F.json FRAGMENT            any design command on a user's process file
 //
 // The exit status is 0 when every design was evaluated, 1 when a design
 // could not be (a bad fragment, no operating point), and 2 for a usage
@@ -39,6 +41,11 @@ const usage = `usage:
   stagewright charts FRAGMENT                          gm/ID design charts, present design marked
   stagewright sweep FRAGMENT -key K -lo A -hi B [-n 50] [-csv]   every figure against one input
   stagewright compare FRAGMENT                         A/B table of the design against its pin=
+  stagewright fit FILE -pol n|p [-base d180] [-w W -l L] [-temp 27] [-process NAME -o FILE.json]
+                              fit the model to a transistor's characterization data (CSV)
+
+Every design command takes -process FILE.json: the design then uses that process file's
+process (its keys join the fragment's; the fragment's own n.*/p.* keys win).
 `
 
 func main() { os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)) }
@@ -48,7 +55,18 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprint(stderr, usage)
 		return 2
 	}
+	userProcess = nil
+	if args[0] != "fit" && args[0] != "keys" {
+		rest, pf, err := processFlag(args[1:])
+		if err != nil {
+			fmt.Fprintf(stderr, "stagewright %s: -process: %v\n", args[0], err)
+			return 2
+		}
+		args, userProcess = append(args[:1:1], rest...), pf
+	}
 	switch args[0] {
+	case "fit":
+		return cmdFit(args[1:], stdout, stderr)
 	case "eval":
 		if len(args) != 2 {
 			fmt.Fprint(stderr, "stagewright eval: give exactly one fragment, or - to read fragments from standard input\n"+usage)
@@ -104,7 +122,7 @@ func status(r *design.Result) int {
 
 func evalOne(fragment string, stdout, stderr io.Writer) int {
 	var e design.Evaluator
-	r := e.EvaluateFragment(fragment)
+	r := e.EvaluateFragment(onProcess(fragment))
 	st := status(&r)
 	stdout.Write(append(r.JSON(), '\n'))
 	if st != 0 {
@@ -127,7 +145,7 @@ func evalLines(stdin io.Reader, stdout, stderr io.Writer) int {
 		if text == "" || strings.HasPrefix(text, "//") {
 			continue
 		}
-		r := e.EvaluateFragment(text)
+		r := e.EvaluateFragment(onProcess(text))
 		st := status(&r)
 		w.Write(append(r.JSON(), '\n'))
 		if st != 0 {

@@ -62,7 +62,7 @@ func TestEvalMalformed(t *testing.T) {
 		"stage=xx":     "stage",
 		"wdith=10u":    "wdith",
 		"vdd=0":        "vdd",
-		"v=2":          "v",
+		"v=3":          "v",
 		"rd=10k&rd=5k": "rd",
 	} {
 		code, _, errs := runCLI([]string{"eval", frag}, "")

@@ -35,7 +35,11 @@ func checkAid(t *testing.T, name string, cmd func([]string, *strings.Reader, *by
 func TestCmdSize(t *testing.T) {
 	checkAid(t, "size", func(a []string, in *strings.Reader, o, e *bytes.Buffer) int { return cmdSize(a, in, o, e) }, []aidCase{
 		{[]string{"w=20u&cl=500f&t.gain=5&t.idd=200u"}, 0, `"feasible":true`},
-		{[]string{"-csv", "w=20u&cl=500f&t.gain=5&t.idd=200u"}, 0, "key,kind,target,value,margin,met,binds\nt.gain,min,5,"},
+		{[]string{"-csv", "w=20u&cl=500f&t.gain=5&t.idd=200u"}, 0, "key,kind,target,value,margin,met,binds,hard\nt.gain,min,5,"},
+		{[]string{"-csv", "w=20u&cl=500f&t.gain=5&t.idd=200u&hard=idd&obj=area"}, 0, ",true,false,true\nobj=area,least,,"},
+		{[]string{"w=20u&cl=500f&t.gain=5&t.idd=200u&obj=power"}, 0, `"objective":{"key":"power"`},
+		{[]string{"cl=1p&t.gain=20&t.f3db=50M&t.idd=200u&hard=idd"}, 1, `"hard":true`},
+		{[]string{"hard=gain&t.gain=5"}, 1, ""},
 		{[]string{"t.gain=1e5&t.idd=10u"}, 1, `"feasible":false`},
 		{[]string{"w=-1"}, 1, ""},
 		{[]string{""}, 1, ""}, // no target

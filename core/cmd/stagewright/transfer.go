@@ -13,8 +13,12 @@ import (
 
 const transferUsage = `usage: stagewright transfer FRAGMENT [-csv] [-points 201]
   the DC transfer curve: the input level swept over 0 … vdd with the bias held, the output level,
-  the gain and both regions at every level, and the usable input range and output swing; JSON,
-  or rows vin,vout,gain,region1,region2 with -csv
+  the gain and both regions at every level (refined where the curve is steep, so that no step moves
+  the output by more than 1 % of vdd; -points sets the uniform grid it starts from), the usable input
+  range and output swing, and the swing around the operating point: the headroom up and down from the
+  DC output to the first transistor leaving saturation, named at the output's high and low end, and
+  the symmetric swing (twice the smaller headroom); JSON, or rows vin,vout,gain,region1,region2 with
+  -csv (the swing then as a last line on stderr)
 `
 
 const distortionUsage = `usage: stagewright distortion FRAGMENT [-amp 10m]
@@ -69,6 +73,7 @@ func cmdTransfer(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			fmt.Fprintln(stderr, "stagewright transfer:", err)
 			return 1
 		}
+		fmt.Fprintln(stderr, swingLine(tr))
 		return 0
 	}
 	out, err := marshal(tr)
@@ -115,4 +120,13 @@ func cmdDistortion(args []string, stdin io.Reader, stdout, stderr io.Writer) int
 	}
 	stdout.Write(append(out, '\n'))
 	return 0
+}
+
+// swingLine is the swing around the operating point in one line, in output
+// terms: "output 900 mV: up 598.9 mV (M2 leaves saturation), down 735.3 mV
+// (M1 leaves saturation), symmetric 1.198 V; usable range 1.193 V".
+func swingLine(tr transfer.Trace) string {
+	v := func(x float64) string { return units.Engineering(x, 4, "V") }
+	return fmt.Sprintf("output %s: up %s (%s), down %s (%s), symmetric %s; usable range %s",
+		v(tr.OutOp), v(tr.HeadroomHi), tr.LimitOutHi, v(tr.HeadroomLo), tr.LimitOutLo, v(tr.SwingSym), v(tr.Swing))
 }

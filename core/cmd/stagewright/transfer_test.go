@@ -8,6 +8,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"stagewright/core/transfer"
 )
 
 type runFunc func(args []string, stdin io.Reader, stdout, stderr io.Writer) int
@@ -33,6 +35,12 @@ func TestTransferCommandJSON(t *testing.T) {
 		InHi             float64 `json:"in_hi"`
 		Swing            float64 `json:"swing"`
 		LimitLo          string  `json:"limit_lo"`
+		OutOp            float64 `json:"out_op"`
+		HeadroomHi       float64 `json:"headroom_hi"`
+		HeadroomLo       float64 `json:"headroom_lo"`
+		SwingSym         float64 `json:"swing_sym"`
+		LimitOutHi       string  `json:"limit_out_hi"`
+		LimitOutLo       string  `json:"limit_out_lo"`
 		Runs             []struct {
 			From, To int
 		}
@@ -45,6 +53,14 @@ func TestTransferCommandJSON(t *testing.T) {
 	}
 	if !(r.InLo < r.InHi && r.Swing > 0 && r.LimitLo != "" && len(r.Runs) > 0) {
 		t.Errorf("summary: %+v", r)
+	}
+	// A resistor-loaded cs stage: the output rises to the supply as M1
+	// turns off, and falls until M1 leaves saturation.
+	if r.LimitOutHi != transfer.LimitSupply || r.LimitOutLo != transfer.LimitM1 ||
+		!(r.HeadroomHi > 0 && r.HeadroomLo > 0) || r.SwingSym != 2*math.Min(r.HeadroomHi, r.HeadroomLo) ||
+		math.Abs(r.OutOp-r.Vout[r.OpIndex]) > 1e-7 { // the series are written to 8 digits
+		t.Errorf("swing around the operating point: out %g, up %g (%q), down %g (%q), symmetric %g",
+			r.OutOp, r.HeadroomHi, r.LimitOutHi, r.HeadroomLo, r.LimitOutLo, r.SwingSym)
 	}
 	// The same design from the eval command: the gain at the operating
 	// point (1e-6, as the transfer package's own check).
@@ -71,8 +87,13 @@ func TestTransferCommandCSV(t *testing.T) {
 		if strings.Join(rows[0], ",") != "vin,vout,gain,region1,region2" {
 			t.Errorf("header %v", rows[0])
 		}
-		if n := len(rows) - 1; n != 11 && n != 12 {
+		// The 11 levels of the grid, refined where the curve is steep (at
+		// most RefineFactor × 11 + 1 levels).
+		if n := len(rows) - 1; n < 11 || n > transfer.RefineFactor*11+1 {
 			t.Errorf("%d rows for 11 points", n)
+		}
+		if !strings.Contains(errs, "up ") || !strings.Contains(errs, "down ") || !strings.Contains(errs, "symmetric ") {
+			t.Errorf("no swing line on stderr: %q", errs)
 		}
 		if rows[1][0] != "0" || rows[len(rows)-1][0] != "1.8" {
 			t.Errorf("rows span %s … %s, want 0 … 1.8", rows[1][0], rows[len(rows)-1][0])

@@ -14,8 +14,9 @@ import (
 )
 
 const cornersUsage = `usage: stagewright corners FRAGMENT [-csv]
-  every process corner (tt ss ff sf fs) at -40, 27 and 125 °C and the design's own temperature;
-  JSON by default, a table with -csv
+  every process corner (tt ss ff sf fs) at -40, 27 and 125 °C and the design's own temperature,
+  at the supply ±vddtol (10 %); every device's region, the worst named and flagged; a current
+  bias held as hold= says (mirror, fixed, ideal). JSON by default, a table with -csv
 `
 
 const mcUsage = `usage: stagewright mc FRAGMENT [-n 1000] [-seed 1] [-t.gain V/V] [-t.f3db Hz] [-t.gbw Hz] [-t.idd A] [-t.power W] [-t.margin V]
@@ -89,14 +90,20 @@ func csvNum(v design.Num) string {
 
 func writeCornersCSV(w io.Writer, rows []variation.CornerRow) {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"corner", "temp_c", "ok", "gain", "f3db_hz", "gbw_hz", "id_a", "vout_v", "power_w", "margin_v", "region", "in_rms_v", "error"})
+	cw.Write([]string{"corner", "temp_c", "vdd_v", "ok", "flag", "gain", "f3db_hz", "gbw_hz", "id_a", "vout_v", "vout_drift_v",
+		"power_w", "margin_v", "region", "in_rms_v", "error"})
 	for _, r := range rows {
 		msg := ""
 		if r.Error != nil {
 			msg = r.Error.Message
 		}
-		cw.Write([]string{r.Corner, csvNum(r.Temp), strconv.FormatBool(r.OK), csvNum(r.Gain), csvNum(r.F3dB), csvNum(r.GBW),
-			csvNum(r.ID), csvNum(r.VOut), csvNum(r.Power), csvNum(r.Margin), r.Region, csvNum(r.InRMS), msg})
+		flagged := ""
+		if r.Flag {
+			flagged = "out of saturation"
+		}
+		cw.Write([]string{r.Corner, csvNum(r.Temp), csvNum(r.VDD), strconv.FormatBool(r.OK), flagged, csvNum(r.Gain), csvNum(r.F3dB),
+			csvNum(r.GBW), csvNum(r.ID), csvNum(r.VOut), csvNum(r.VOutDrift), csvNum(r.Power), csvNum(r.Margin), r.Region,
+			csvNum(r.InRMS), msg})
 	}
 	cw.Flush()
 }

@@ -33,6 +33,7 @@ func TestCornersCommand(t *testing.T) {
 		Rows []struct {
 			Corner string
 			Temp   float64
+			VDD    float64
 			OK     bool
 			ID     *float64
 		}
@@ -40,14 +41,14 @@ func TestCornersCommand(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatal(err)
 	}
-	if !r.OK || len(r.Rows) != 15 {
+	if !r.OK || len(r.Rows) != 45 {
 		t.Fatalf("ok %v, %d rows", r.OK, len(r.Rows))
 	}
 	// Common practice: at a fixed input level the slow corner carries the
 	// least current, the fast one the most.
 	var ss, ff, tt float64
 	for _, row := range r.Rows {
-		if row.Temp == 27 && row.ID != nil {
+		if row.Temp == 27 && row.VDD == 1.8 && row.ID != nil {
 			switch row.Corner {
 			case "ss":
 				ss = *row.ID
@@ -66,7 +67,7 @@ func TestCornersCommand(t *testing.T) {
 	for _, args := range [][]string{{"-csv", demoFragment}, {demoFragment, "-csv"}} {
 		code, out, _ = corners(args...)
 		recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
-		if code != 0 || err != nil || len(recs) != 16 || recs[0][0] != "corner" || len(recs[1]) != 13 {
+		if code != 0 || err != nil || len(recs) != 46 || recs[0][0] != "corner" || len(recs[1]) != 16 {
 			t.Errorf("%v: exit %d, %v, %d records", args, code, err, len(recs))
 		}
 	}

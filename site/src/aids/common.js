@@ -92,7 +92,8 @@ const decadeGrid = { stroke: AID_COLOURS.grid, width: 1, filter: (u, splits) => 
 
 /**
  * A small x–y chart that keeps its width in step with its box. spec:
- * {xLabel, yLabel, xUnit, yUnit, xLog, yLog, xDigits, xSpace (least pixels between x ticks, for long labels), height, bars, series: [{label, stroke, dash, width}]}.
+ * {xLabel, yLabel, xUnit, yUnit, xLog, yLog, xDigits, xSpace (least pixels between x ticks, for long labels), height, bars,
+ * series: [{label, stroke, dash, width, spanGaps (draw across nulls), points (markers only, no line; fill)}]}.
  * overlay(u, ctx) draws on top (markers, shading); under(u, ctx) below the lines.
  */
 export class Chart {
@@ -130,8 +131,8 @@ export class Chart {
       series: [
         {},
         ...s.series.map((x) => ({
-          label: x.label, stroke: x.stroke || AID_COLOURS.line, width: x.width || 2, dash: x.dash, spanGaps: false,
-          ...(s.bars ? { fill: 'rgba(91,127,176,0.55)', paths: bars, points: { show: false } } : { points: { show: false } }),
+          label: x.label, stroke: x.stroke || AID_COLOURS.line, width: x.width || 2, dash: x.dash, spanGaps: !!x.spanGaps,
+          ...(s.bars ? { fill: 'rgba(91,127,176,0.55)', paths: bars, points: { show: false } } : x.points ? { paths: () => null, points: { show: true, size: 5, width: 1, stroke: x.stroke, fill: x.fill || 'transparent' } } : { points: { show: false } }),
         })),
       ],
       hooks: {
@@ -212,8 +213,8 @@ export function markX(u, ctx, x, label) {
 }
 
 /** Runs one aid method in the worker; resolves with the result or throws an Error carrying the message. */
-export async function callAid(engine, method, arg) {
-  const { response, ms } = await engine.call(method, arg);
+export async function callAid(engine, method, ...args) {
+  const { response, ms } = await engine.call(method, ...args);
   if (!response || response.error) {
     const e = new Error((response && response.error && response.error.message) || `${method}: no answer`);
     e.key = response && response.error && response.error.key;

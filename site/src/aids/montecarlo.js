@@ -34,7 +34,7 @@ export function monteCarloPanel(ctx) {
   const msg = note();
   p.body.append(
     controls,
-    h('p', { class: 'aid-note', text: 'Global process shift and device mismatch (Pelgrom) of the demo process; runs only when you press Run. The yield counts the targets set under “Size to a spec”.' }),
+    h('p', { class: 'aid-note', text: 'Global process shift and device mismatch (Pelgrom) of the design’s process (the base process’s spread unless the n.*/p.* spread keys set your own); runs only when you press Run. The yield counts the targets set under “Size to a spec”.' }),
     before, yieldLine, stats, hists, msg,
   );
   const job = new Job(ctx.engine, 'montecarloStart');
