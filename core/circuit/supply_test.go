@@ -22,7 +22,11 @@ func TestSupplyGainSuperposition(t *testing.T) {
 	g := [...]float64{1 / 1e3, 1 / 2.2e3, 1 / 4.7e3, 1 / 10e3, 1 / 3.3e3, 1 / 6.8e3, 1 / 1.5e3} // vdd, vb, ref, sig, neg, ground, RL
 	from := [...]Node{vdd, vb, ref, sig, neg, Ground}
 	for i, n := range from {
-		c.AddResistor("R", n, out, 1/g[i])
+		if i%2 == 0 { // both orientations, so both ends' stamps are used
+			c.AddResistor("R", n, out, 1/g[i])
+		} else {
+			c.AddResistor("R", out, n, 1/g[i])
+		}
 	}
 	rl := c.AddResistor("RL", out, Ground, 1/g[6])
 	c.Resistors[rl].ACOnly = true
