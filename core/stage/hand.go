@@ -40,7 +40,11 @@ func fromReport(r device.Report) small { return small{r.GM, r.GMB, 1 / r.GDS} }
 // HandEstimate writes the textbook estimates for the stage with M1's values
 // m1 and, where there is one, the load transistor's m2.
 func HandEstimate(s Spec, m1 device.Report, m2 *device.Report) Hand {
-	return handFormulas(s, fromReport(m1), m2small(m2))
+	a, b := fromReport(m1), m2small(m2)
+	h := handFormulas(s, a, b)
+	zl, zlName := loadSeen(s, b)
+	h.SupplyGain, h.SupplyFormula = supplyFormulas(s, a, zl, zlName)
+	return h
 }
 
 func m2small(m2 *device.Report) *small {
@@ -68,20 +72,7 @@ func handFormulas(s Spec, m1 small, m2 *small) Hand {
 	gm, gmb, ro := m1.gm, m1.gmb, m1.ro
 	rl := s.RL
 	inf := math.Inf(1)
-	// The load seen at the output node, looking away from M1.
-	var zl float64
-	var zlName string
-	switch s.Load {
-	case Resistor:
-		zl, zlName = s.RD, "RD"
-		if s.Kind == SF {
-			zl, zlName = s.RS, "RS"
-		}
-	case Active:
-		zl, zlName = m2.ro, "ro2"
-	case Diode:
-		zl, zlName = par(1/m2.gm, m2.ro), "(1/gm2‖ro2)"
-	}
+	zl, zlName := loadSeen(s, m2)
 	switch s.Kind {
 	case CS:
 		h.Rin, h.RinFormula = inf, "∞ (gate)"
@@ -114,8 +105,22 @@ func handFormulas(s Spec, m1 small, m2 *small) Hand {
 		h.Rout = par(1/(gm+gmb), zl)
 		h.RoutFormula = "1/(gm+gmb)‖" + zlName
 	}
-	h.SupplyGain, h.SupplyFormula = supplyFormulas(s, m1, zl, zlName)
 	return h
+}
+
+// loadSeen is the load seen at the output node, looking away from M1, and
+// its name in the formulas.
+func loadSeen(s Spec, m2 *small) (float64, string) {
+	switch s.Load {
+	case Active:
+		return m2.ro, "ro2"
+	case Diode:
+		return par(1/m2.gm, m2.ro), "(1/gm2‖ro2)"
+	}
+	if s.Kind == SF {
+		return s.RS, "RS"
+	}
+	return s.RD, "RD"
 }
 
 // supplyFormulas is the textbook small-signal analysis of the supply's path
@@ -152,9 +157,14 @@ func handFormulas(s Spec, m1 small, m2 *small) Hand {
 func supplyFormulas(s Spec, m1 small, zl float64, zlName string) (float64, string) {
 	gm, gmb, ro := m1.gm, m1.gmb, m1.ro
 	z := par(zl, s.RL)
-	zName := "(" + zlName + "‖RL)"
-	if math.IsInf(s.RL, 1) {
-		zName = zlName
+	// withRL names r‖RL, or r alone without a load resistance. Names are
+	// joined only on the branch taken: each join is an allocation, and one
+	// evaluation runs per slider move.
+	withRL := func(name string) string {
+		if math.IsInf(s.RL, 1) {
+			return name
+		}
+		return "(" + name + "‖RL)"
 	}
 	nmos := s.Pol == device.NMOS
 	switch s.Kind {
@@ -169,21 +179,20 @@ func supplyFormulas(s Spec, m1 small, zl float64, zlName string) (float64, strin
 		switch {
 		case nmos:
 			below := par(r1, s.RL)
-			belowName := "(" + r1Name + "‖RL)"
-			if math.IsInf(s.RL, 1) {
-				belowName = r1Name
-			}
+			belowName := withRL(r1Name)
 			return below / (zl + below), belowName + "/(" + zlName + "+" + belowName + ")"
 		case s.Kind == CS:
+			zName := withRL(zlName)
 			return (1 + gm*ro) * z / (z + r1), "(1+gm·ro)·" + zName + "/(" + zName + "+" + r1Name + ")"
 		default:
+			zName := withRL(zlName)
 			return -gmb * ro * z / (z + r1), "−gmb·ro·" + zName + "/(" + zName + "+" + r1Name + ")"
 		}
 	default: // SF
 		den := gm + gmb + 1/ro + 1/z
 		if nmos {
-			return (1 / ro) / den, "(1/ro)/(gm+gmb+1/ro+1/" + zName + ")"
+			return (1 / ro) / den, "(1/ro)/(gm+gmb+1/ro+1/" + withRL(zlName) + ")"
 		}
-		return (1/zl + gmb) / den, "(1/" + zlName + "+gmb)/(gm+gmb+1/ro+1/" + zName + ")"
+		return (1/zl + gmb) / den, "(1/" + zlName + "+gmb)/(gm+gmb+1/ro+1/" + withRL(zlName) + ")"
 	}
 }
