@@ -33,6 +33,11 @@ type VSource struct {
 	Name string
 	P, N Node
 	V    float64
+	// Supply is how far the source's value moves per volt of the supply,
+	// dV/dVDD, in the supply-rejection analysis (Network.SupplyGain): 1 for
+	// the supply itself and for a bias set relative to it, 0 (the zero
+	// value) for a level set from ground.
+	Supply float64
 }
 
 // ISource is an ideal current source of I amperes flowing from A through the

@@ -35,10 +35,16 @@ type NoiseSource struct {
 //
 // Y(s) = G + s·C is the node admittance matrix (row-major, N×N), and the
 // network equation is Y(s)·v = −(GSig + s·CSig) for a unit signal.
+//
+// GSup is the same coupling for a unit change of the supply instead: every
+// source held node moves by its source's Supply share (the supply node by
+// 1, a bias set from the supply by 1, every other by 0), the signal source
+// among them, and G·v = −GSup gives the low-frequency response to it.
 type Network struct {
 	N          int
 	G, C       []float64
 	GSig, CSig []float64 // coupling of each free node to the signal node
+	GSup       []float64 // coupling of each free node to a unit supply change (conductances only)
 	In, Out    int       // free indices of the ports (−1 if the port is not free)
 	RSigG      float64   // conductance of the signal-source resistance at In (0 if none)
 	RLG        float64   // conductance of the load resistance at Out (0 if none)
@@ -85,8 +91,9 @@ const smallNodes = 3
 type networkStore struct {
 	nw       Network
 	free     [8]int
+	share    [8]float64 // node → supply share of the source holding it
 	names    [smallNodes]string
-	matrices [2*smallNodes*smallNodes + 2*smallNodes]float64 // G, C, GSig, CSig
+	matrices [2*smallNodes*smallNodes + 3*smallNodes]float64 // G, C, GSig, CSig, GSup
 	noise    [6]NoiseSource
 	devices  [2]device.Report
 }
@@ -123,8 +130,18 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 	st := new(networkStore)
 	nw := &st.nw
 	nw.free = st.free[:0]
+	share := st.share[:0]
 	for range nodes {
 		nw.free = append(nw.free, 0)
+		share = append(share, 0)
+	}
+	for _, vs := range c.VSources {
+		// A source from N to ground holds N at −V: its node moves by −Supply.
+		if vs.N == Ground {
+			share[vs.P] = vs.Supply
+		} else {
+			share[vs.N] = -vs.Supply
+		}
 	}
 	nw.names = st.names[:0]
 	nw.Noise = st.noise[:0]
@@ -140,30 +157,42 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 	n := nw.N
 	m := st.matrices[:0]
 	if n > smallNodes {
-		m = make([]float64, 0, 2*n*n+2*n)
+		m = make([]float64, 0, 2*n*n+3*n)
 	}
-	m = m[:2*n*n+2*n]
-	nw.G, nw.C, nw.GSig, nw.CSig = m[:n*n:n*n], m[n*n:2*n*n:2*n*n], m[2*n*n:2*n*n+n:2*n*n+n], m[2*n*n+n:]
+	m = m[:2*n*n+3*n]
+	nw.G, nw.C, nw.GSig, nw.CSig = m[:n*n:n*n], m[n*n:2*n*n:2*n*n], m[2*n*n:2*n*n+n:2*n*n+n], m[2*n*n+n:2*n*n+2*n:2*n*n+2*n]
+	nw.GSup = m[2*n*n+2*n:]
 	nw.In, nw.Out = nw.FreeIndex(ports.In), nw.FreeIndex(ports.Out)
 
-	// stamp adds a two-terminal admittance y between a and b into m, and
-	// its coupling to the signal node into sig.
-	stamp := func(m, sig []float64, a, b Node, y float64) {
+	// stamp adds a two-terminal admittance y between a and b into m, its
+	// coupling to the signal node into sig and, when sup is not nil, its
+	// coupling to the supply into sup.
+	stamp := func(m, sig, sup []float64, a, b Node, y float64) {
 		fa, fb := nw.free[a], nw.free[b]
 		if fa >= 0 {
 			m[fa*n+fa] += y
 			if fb >= 0 {
 				m[fa*n+fb] -= y
-			} else if b == sigNode {
-				sig[fa] -= y
+			} else {
+				if b == sigNode {
+					sig[fa] -= y
+				}
+				if sup != nil {
+					sup[fa] -= y * share[b]
+				}
 			}
 		}
 		if fb >= 0 {
 			m[fb*n+fb] += y
 			if fa >= 0 {
 				m[fb*n+fa] -= y
-			} else if a == sigNode {
-				sig[fb] -= y
+			} else {
+				if a == sigNode {
+					sig[fb] -= y
+				}
+				if sup != nil {
+					sup[fb] -= y * share[a]
+				}
 			}
 		}
 	}
@@ -179,12 +208,14 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 			if r < 0 {
 				continue
 			}
-			switch {
-			case fc >= 0:
+			if fc >= 0 {
 				nw.G[r*n+fc] += t.sign * g
-			case ctrl == sigNode:
+				continue
+			}
+			if ctrl == sigNode {
 				nw.GSig[r] += t.sign * g
 			}
+			nw.GSup[r] += t.sign * g * share[ctrl]
 		}
 	}
 	kT4 := 4 * device.Boltzmann * tempK
@@ -193,7 +224,7 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 			continue
 		}
 		g := 1 / r.R
-		stamp(nw.G, nw.GSig, r.A, r.B, g)
+		stamp(nw.G, nw.GSig, nw.GSup, r.A, r.B, g)
 		if i == ports.RSig {
 			nw.RSigG = g
 		}
@@ -205,7 +236,7 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 		}
 	}
 	for _, k := range c.Caps {
-		stamp(nw.C, nw.CSig, k.A, k.B, k.C)
+		stamp(nw.C, nw.CSig, nil, k.A, k.B, k.C)
 	}
 	for _, m := range c.FETs {
 		v := op.V
@@ -217,17 +248,17 @@ func (c *Circuit) Linearize(op OperatingPoint, ports Ports, tempK float64) (*Net
 		vccs(m.D, m.S, m.B, rep.GMB)
 		vccs(m.D, m.S, m.D, rep.GDS)
 		vccs(m.D, m.S, m.S, -(rep.GM + rep.GMB + rep.GDS))
-		stamp(nw.C, nw.CSig, m.G, m.S, rep.CGS)
-		stamp(nw.C, nw.CSig, m.G, m.D, rep.CGD)
-		stamp(nw.C, nw.CSig, m.G, m.B, rep.CGB)
-		stamp(nw.C, nw.CSig, m.D, m.B, rep.CDB)
-		stamp(nw.C, nw.CSig, m.S, m.B, rep.CSB)
+		stamp(nw.C, nw.CSig, nil, m.G, m.S, rep.CGS)
+		stamp(nw.C, nw.CSig, nil, m.G, m.D, rep.CGD)
+		stamp(nw.C, nw.CSig, nil, m.G, m.B, rep.CGB)
+		stamp(nw.C, nw.CSig, nil, m.D, m.B, rep.CDB)
+		stamp(nw.C, nw.CSig, nil, m.S, m.B, rep.CSB)
 		nw.Noise = append(nw.Noise, NoiseSource{
 			Name: m.Name, A: nw.free[m.D], B: nw.free[m.S],
 			White: rep.SID, Flicker: rep.GM * rep.GM * rep.FlickerGate,
 		})
 	}
-	for _, x := range [][]float64{nw.G, nw.C, nw.GSig, nw.CSig} {
+	for _, x := range [][]float64{nw.G, nw.C, nw.GSig, nw.CSig, nw.GSup} {
 		for _, v := range x {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return nil, fmt.Errorf("linearize: a small-signal value is not finite")

@@ -115,3 +115,66 @@ func driveResistance(g []float64, n, k int) float64 {
 	}
 	return 1 / cur
 }
+
+// SupplyGain is the low-frequency small-signal gain from the supply to the
+// output, v(out)/v(supply) (V/V, signed), with the load resistance
+// connected: the network driven by GSup (each source-held node moved by its
+// source's Supply share, the signal source's among them; with the usual
+// shares the signal is held), solved with the same factorization of G as
+// the midband gain. It allocates nothing for a stage-sized network.
+func (nw *Network) SupplyGain() (float64, error) {
+	if nw.Out < 0 {
+		return 0, errNoPort("output")
+	}
+	if len(nw.GSup) != nw.N {
+		return 0, errNoSupply{}
+	}
+	lu, err := nw.FactorG()
+	if err != nil {
+		return 0, err
+	}
+	var xs [smallNodes]float64
+	x := xs[:0]
+	if nw.N > smallNodes {
+		x = make([]float64, 0, nw.N)
+	}
+	x = x[:nw.N]
+	for i := range x {
+		x[i] = -nw.GSup[i]
+	}
+	lu.Solve(x, x)
+	return x[nw.Out], nil
+}
+
+// SupplyGainDC is SupplyGain at DC, where the AC-coupled load resistance
+// carries no current: the same excitation solved with the load resistance
+// taken out of G. It factors its own matrix and allocates; the operating
+// point moved by a small supply step changes the output by this much per
+// volt.
+func (nw *Network) SupplyGainDC() (float64, error) {
+	n := nw.N
+	if nw.Out < 0 {
+		return 0, errNoPort("output")
+	}
+	if len(nw.GSup) != n {
+		return 0, errNoSupply{}
+	}
+	g := append([]float64(nil), nw.G...)
+	g[nw.Out*n+nw.Out] -= nw.RLG
+	var lu dense.LU
+	if err := lu.Factorize(n, g); err != nil {
+		return 0, err
+	}
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = -nw.GSup[i]
+	}
+	lu.Solve(x, x)
+	return x[nw.Out], nil
+}
+
+type errNoSupply struct{}
+
+func (errNoSupply) Error() string {
+	return "supply gain: the network has no supply coupling (it was not built by Linearize)"
+}

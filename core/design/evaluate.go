@@ -117,18 +117,25 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 	res.Method = sol.OP.Method
 	res.Warnings = append(res.Warnings, sol.Warnings...)
 
-	// Operating point.
+	// Operating point: op (M1's, with the stage's power), and one entry of
+	// devices per transistor, load_op being M2's. One allocation holds
+	// them all.
 	m1 := sol.Report(1)
-	op := deviceOP(m1, sol.W, spec.L)
-	power := Num(spec.VDD * sol.SupplyCurrent())
-	op.Power = &power
-	res.OP = &op
+	st := new(opStore)
+	st.op = deviceOP(m1, sol.W, spec.L)
+	st.power = Num(spec.VDD * sol.SupplyCurrent())
+	st.op.Power = &st.power
+	res.OP = &st.op
+	st.devices[0] = Device{Name: sol.C.FETs[sol.M1].Name, Role: sol.Role(sol.M1), Pol: polName(spec.Pol), DeviceOP: st.op}
+	st.devices[0].Power = nil
+	res.Devices = st.devices[:1]
 	var m2 *device.Report
 	if sol.M2 >= 0 {
 		r2 := sol.Report(2)
 		m2 = &r2
-		lop := deviceOP(r2, spec.LoadW, spec.LoadL)
-		res.LoadOP = &lop
+		st.devices[1] = Device{Name: sol.C.FETs[sol.M2].Name, Role: sol.Role(sol.M2), Pol: polName(sol.Dev2.Polarity()), DeviceOP: deviceOP(r2, spec.LoadW, spec.LoadL)}
+		res.LoadOP = &st.devices[1].DeviceOP
+		res.Devices = st.devices[:2]
 	}
 	res.Nodes = map[string]Num{}
 	for name := range sol.Nodes {
@@ -145,7 +152,17 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 	if err != nil {
 		return fail(res, "internal", "", err.Error())
 	}
-	res.Midband = &Midband{Gain: Num(mb.Gain), GainDB: Num(20 * math.Log10(math.Abs(mb.Gain))), Rin: Num(mb.Rin), Rout: Num(mb.Rout)}
+	supply, err := nw.SupplyGain()
+	if err != nil {
+		return fail(res, "internal", "", err.Error())
+	}
+	res.Midband = &Midband{
+		Gain: Num(mb.Gain), GainDB: Num(20 * math.Log10(math.Abs(mb.Gain))), Rin: Num(mb.Rin), Rout: Num(mb.Rout),
+		SupplyGain: Num(supply), PSRRdB: Num(psrrDB(mb.Gain, supply)),
+	}
+	if supply == 0 {
+		res.Warnings = append(res.Warnings, "psrr is infinite: no path carries a supply change to the output at low frequency")
+	}
 	if math.IsInf(mb.Rin, 0) {
 		res.Warnings = append(res.Warnings, "rin is infinite: the input is a gate, which draws no current at low frequency")
 	}
@@ -154,10 +171,14 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 	}
 	h := stage.HandEstimate(sol.Built.Spec, m1, m2)
 	res.Hand = &HandResult{
-		Triple:  Triple{Gain: Num(h.Gain), Rin: Num(h.Rin), Rout: Num(h.Rout)},
-		Formula: map[string]string{"gain": h.GainFormula, "rin": h.RinFormula, "rout": h.RoutFormula},
+		Triple:     Triple{Gain: Num(h.Gain), Rin: Num(h.Rin), Rout: Num(h.Rout)},
+		SupplyGain: Num(h.SupplyGain), PSRRdB: Num(psrrDB(h.Gain, h.SupplyGain)),
+		Formula: map[string]string{"gain": h.GainFormula, "rin": h.RinFormula, "rout": h.RoutFormula, "supply_gain": h.SupplyFormula},
 	}
-	res.DiffPct = &Triple{Gain: pct(h.Gain, mb.Gain), Rin: pct(h.Rin, mb.Rin), Rout: pct(h.Rout, mb.Rout)}
+	res.DiffPct = &Diffs{
+		Triple:     Triple{Gain: pct(h.Gain, mb.Gain), Rin: pct(h.Rin, mb.Rin), Rout: pct(h.Rout, mb.Rout)},
+		SupplyGain: pct(h.SupplyGain, supply),
+	}
 	sq1 := sol.Dev1.SquareLawAt(m1.ID, -m1.VBS*float64(spec.Pol))
 	var sq2 device.SquareLaw
 	if m2 != nil {
@@ -209,6 +230,30 @@ func (e *Evaluator) evaluate(d Design, valid bool) (res Result) {
 	}
 	res.OK = true
 	return res
+}
+
+// opStore holds the operating-point figures of one result.
+type opStore struct {
+	op      DeviceOP
+	power   Num
+	devices [2]Device
+}
+
+func polName(p device.Polarity) string {
+	if p == device.PMOS {
+		return "p"
+	}
+	return "n"
+}
+
+// psrrDB is the supply rejection 20·log10(|gain|/|supply gain|), dB: the
+// signal gain over the gain from the supply, the usual definition. It is
+// +Inf (null in JSON) when the supply gain is 0.
+func psrrDB(gain, supply float64) float64 {
+	if supply == 0 {
+		return math.Inf(1)
+	}
+	return 20 * math.Log10(math.Abs(gain)/math.Abs(supply))
 }
 
 func pct(hand, exact float64) Num {

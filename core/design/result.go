@@ -55,10 +55,11 @@ type Result struct {
 
 	OP       *DeviceOP      `json:"op,omitempty"`
 	LoadOP   *DeviceOP      `json:"load_op,omitempty"`
+	Devices  []Device       `json:"devices,omitempty"`
 	Nodes    map[string]Num `json:"nodes,omitempty"`
 	Midband  *Midband       `json:"midband,omitempty"`
 	Hand     *HandResult    `json:"hand,omitempty"`
-	DiffPct  *Triple        `json:"diff_pct,omitempty"`
+	DiffPct  *Diffs         `json:"diff_pct,omitempty"`
 	Square   *SquareLaw     `json:"square_law,omitempty"`
 	AC       *AC            `json:"ac,omitempty"`
 	Poles    []Root         `json:"poles,omitempty"`
@@ -126,13 +127,29 @@ type DeviceOP struct {
 	L         Num    `json:"l"`
 }
 
+// Device is one transistor of the stage: its name in the circuit (M1,
+// M2), what it does there (Role: "input", "load", "sink"), its polarity
+// ("n", "p") and its operating point. The stage's supply power is on op
+// alone, not on any device.
+type Device struct {
+	Name string `json:"name"`
+	Role string `json:"role"`
+	Pol  string `json:"pol"`
+	DeviceOP
+}
+
 // Midband is the exact low-frequency gain (V/V), input and output
-// resistance (Ω; null when open).
+// resistance (Ω; null when open), and the supply rejection: SupplyGain is
+// v(out)/v(VDD) (V/V, signed) with the signal held, PSRRdB =
+// 20·log10(|Gain|/|SupplyGain|) (null when the supply does not reach the
+// output at all).
 type Midband struct {
-	Gain   Num `json:"gain"`
-	GainDB Num `json:"gain_db"`
-	Rin    Num `json:"rin"`
-	Rout   Num `json:"rout"`
+	Gain       Num `json:"gain"`
+	GainDB     Num `json:"gain_db"`
+	Rin        Num `json:"rin"`
+	Rout       Num `json:"rout"`
+	SupplyGain Num `json:"supply_gain"`
+	PSRRdB     Num `json:"psrr_db"`
 }
 
 // Triple is gain, rin, rout.
@@ -142,10 +159,20 @@ type Triple struct {
 	Rout Num `json:"rout"`
 }
 
-// HandResult is the textbook estimate with its formulas.
+// HandResult is the textbook estimate with its formulas (keys gain, rin,
+// rout, supply_gain).
 type HandResult struct {
 	Triple
-	Formula map[string]string `json:"formula"`
+	SupplyGain Num               `json:"supply_gain"`
+	PSRRdB     Num               `json:"psrr_db"`
+	Formula    map[string]string `json:"formula"`
+}
+
+// Diffs is 100·(hand − exact)/|exact| of each midband figure that has a
+// hand estimate (the PSRR's follows from its two gains and is not repeated).
+type Diffs struct {
+	Triple
+	SupplyGain Num `json:"supply_gain"`
 }
 
 // SquareLaw is the Shichman–Hodges hand model at the same drain current.

@@ -124,6 +124,13 @@ func sortedKeys[V any](m map[string]V) []string {
 
 func (w *jsonWriter) device(op *DeviceOP) {
 	w.open('{')
+	w.deviceFields(op)
+	w.close('}')
+}
+
+// deviceFields writes the members of a DeviceOP, without the braces, so
+// that op, load_op and each entry of devices share them.
+func (w *jsonWriter) deviceFields(op *DeviceOP) {
 	for _, f := range [...]struct {
 		k string
 		v Num
@@ -153,7 +160,6 @@ func (w *jsonWriter) device(op *DeviceOP) {
 		w.key(f.k)
 		w.num(f.v)
 	}
-	w.close('}')
 }
 
 func (w *jsonWriter) triple(t *Triple) {
@@ -235,6 +241,23 @@ func (r *Result) AppendJSON(b []byte) []byte {
 		w.key("load_op")
 		w.device(r.LoadOP)
 	}
+	if len(r.Devices) > 0 {
+		w.key("devices")
+		w.open('[')
+		for i := range r.Devices {
+			d := &r.Devices[i]
+			w.open('{')
+			w.key("name")
+			w.str(d.Name)
+			w.key("role")
+			w.str(d.Role)
+			w.key("pol")
+			w.str(d.Pol)
+			w.deviceFields(&d.DeviceOP)
+			w.close('}')
+		}
+		w.close(']')
+	}
 	if len(r.Nodes) > 0 {
 		w.key("nodes")
 		w.open('{')
@@ -255,12 +278,20 @@ func (r *Result) AppendJSON(b []byte) []byte {
 		w.num(m.Rin)
 		w.key("rout")
 		w.num(m.Rout)
+		w.key("supply_gain")
+		w.num(m.SupplyGain)
+		w.key("psrr_db")
+		w.num(m.PSRRdB)
 		w.close('}')
 	}
 	if h := r.Hand; h != nil {
 		w.key("hand")
 		w.open('{')
 		w.triple(&h.Triple)
+		w.key("supply_gain")
+		w.num(h.SupplyGain)
+		w.key("psrr_db")
+		w.num(h.PSRRdB)
 		w.key("formula")
 		if h.Formula == nil {
 			w.null()
@@ -277,7 +308,9 @@ func (r *Result) AppendJSON(b []byte) []byte {
 	if r.DiffPct != nil {
 		w.key("diff_pct")
 		w.open('{')
-		w.triple(r.DiffPct)
+		w.triple(&r.DiffPct.Triple)
+		w.key("supply_gain")
+		w.num(r.DiffPct.SupplyGain)
 		w.close('}')
 	}
 	if s := r.Square; s != nil {

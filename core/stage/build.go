@@ -42,6 +42,7 @@ func Build(s Spec) (*Built, error) {
 	out := c.AddNode("out")
 	b.Nodes["vdd"], b.Nodes["sig"], b.Nodes["in"], b.Nodes["out"] = vdd, sig, in, out
 	b.Supply = c.AddVSource("VDD", vdd, circuit.Ground, s.VDD)
+	c.VSources[b.Supply].Supply = 1
 	b.Input = c.AddVSource("VSIG", sig, circuit.Ground, s.Vin)
 	rsig := c.AddResistor("RSIG", sig, in, s.RSig)
 	c.Resistors[rsig].Noiseless = true
@@ -110,6 +111,12 @@ func Build(s Spec) (*Built, error) {
 				v = s.VDD - s.LoadVB
 			}
 			b.BiasSrc = c.AddVSource("VB", gate, circuit.Ground, v)
+			if pol2 == device.PMOS {
+				// vbl is the gate's distance from the load's source rail, VDD
+				// here: the gate moves with the supply. Every other level
+				// (vin, vg, an NMOS load's vbl) is set from ground.
+				c.VSources[b.BiasSrc].Supply = 1
+			}
 		}
 		bulk := loadRail
 		b.M2 = c.AddFET("M2", out, gate, loadRail, bulk, &dev2)
@@ -140,6 +147,22 @@ func Build(s Spec) (*Built, error) {
 
 	b.addServos()
 	return b, nil
+}
+
+// Role says in a few words what transistor fet (a FET index of the
+// circuit) does in the stage: "input" for M1, which the signal drives (at
+// its gate, or at its source in a common-gate stage), "load" for a
+// current-source or diode load, "sink" for a follower's current sink.
+func (b *Built) Role(fet int) string {
+	switch {
+	case fet == b.M1:
+		return "input"
+	case fet == b.M2 && b.Spec.Kind == SF:
+		return "sink"
+	case fet == b.M2:
+		return "load"
+	}
+	return ""
 }
 
 // addServos adds the bias equations of the bias mode.

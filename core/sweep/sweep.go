@@ -18,7 +18,7 @@ type Figure struct {
 // Figures are the scalar figures Sweep and Compare report, in order.
 var Figures = []Figure{
 	{"gain", "V/V"}, {"f3db", "Hz"}, {"ugf", "Hz"}, {"gbw", "Hz"}, {"in_rms", "V"}, {"power", "W"},
-	{"margin", "V"}, {"id", "A"}, {"gm_id", "S/A"}, {"rout", "Ω"}, {"rin", "Ω"},
+	{"margin", "V"}, {"id", "A"}, {"gm_id", "S/A"}, {"rout", "Ω"}, {"rin", "Ω"}, {"psrr_db", "dB"},
 }
 
 // figuresOf fills dst (len(Figures)) from r; NaN where a figure is missing.
@@ -30,7 +30,7 @@ func figuresOf(r *design.Result, dst []float64) {
 		return
 	}
 	if m := r.Midband; m != nil {
-		dst[0], dst[9], dst[10] = float64(m.Gain), float64(m.Rout), float64(m.Rin)
+		dst[0], dst[9], dst[10], dst[11] = float64(m.Gain), float64(m.Rout), float64(m.Rin), float64(m.PSRRdB)
 	}
 	if ac := r.AC; ac != nil {
 		dst[1], dst[2], dst[3] = float64(ac.F3dB), float64(ac.UGF), float64(ac.GBW)

@@ -30,9 +30,17 @@ func TestEvalEveryStage(t *testing.T) {
 						Error *struct {
 							Code, Message, Key string
 						} `json:"error"`
-						Midband *struct{ Gain *float64 } `json:"midband"`
-						AC      *struct{ F []float64 }   `json:"ac"`
-						Poles   []json.RawMessage        `json:"poles"`
+						Midband *struct {
+							Gain       *float64
+							SupplyGain *float64 `json:"supply_gain"`
+							PSRR       *float64 `json:"psrr_db"`
+						} `json:"midband"`
+						Hand *struct {
+							SupplyGain *float64 `json:"supply_gain"`
+						} `json:"hand"`
+						Devices []struct{ Name, Role, Pol string } `json:"devices"`
+						AC      *struct{ F []float64 }             `json:"ac"`
+						Poles   []json.RawMessage                  `json:"poles"`
 					}
 					if err := json.Unmarshal([]byte(out), &r); err != nil {
 						t.Fatalf("%s: output is not one JSON object: %v\n%s", frag, err, out)
@@ -47,6 +55,15 @@ func TestEvalEveryStage(t *testing.T) {
 					}
 					if code != 0 || !r.OK || r.Midband == nil || r.Midband.Gain == nil || len(r.AC.F) == 0 || len(r.Poles) == 0 {
 						t.Errorf("%s: exit %d, ok %v, stderr %q", frag, code, r.OK, errs)
+						continue
+					}
+					// The supply rejection and its hand estimate, and one
+					// device per transistor (M2 only with a transistor load).
+					if r.Midband.SupplyGain == nil || r.Midband.PSRR == nil || r.Hand == nil || r.Hand.SupplyGain == nil {
+						t.Errorf("%s: no supply_gain, psrr_db or hand supply_gain in %.300s", frag, out)
+					}
+					if n := 1 + map[bool]int{true: 1}[load != "r"]; len(r.Devices) != n || r.Devices[0].Name != "M1" || r.Devices[0].Pol != pol {
+						t.Errorf("%s: devices %+v, want %d starting with M1 of polarity %s", frag, r.Devices, n, pol)
 					}
 				}
 			}

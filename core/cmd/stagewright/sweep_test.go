@@ -9,7 +9,7 @@ import (
 func TestCmdSweep(t *testing.T) {
 	checkAid(t, "sweep", func(a []string, in *strings.Reader, o, e *bytes.Buffer) int { return cmdSweep(a, in, o, e) }, []aidCase{
 		{[]string{"", "-key", "w", "-lo", "1u", "-hi", "100u", "-n", "5"}, 0, `"key":"w","log":true`},
-		{[]string{"rd=5k", "-key=rd", "-lo=1k", "-hi=9k", "-n=3", "-csv"}, 0, "rd,gain,f3db,ugf,gbw,in_rms,power,margin,id,gm_id,rout,rin,error\n1000,"},
+		{[]string{"rd=5k", "-key=rd", "-lo=1k", "-hi=9k", "-n=3", "-csv"}, 0, "rd,gain,f3db,ugf,gbw,in_rms,power,margin,id,gm_id,rout,rin,psrr_db,error\n1000,"},
 		{[]string{"sw=n.vt0&sw.lo=0.3&sw.hi=0.6&sw.n=4"}, 0, `"key":"n.thresh"`},
 		{[]string{"", "-key", "stage"}, 2, ""},
 		{[]string{"", "-lo", "x"}, 2, ""},
