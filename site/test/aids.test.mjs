@@ -72,6 +72,30 @@ test('the spec as given: the search says why no single stage meets it', async ()
   assert.equal(await page.locator('#size-targets tbody tr').count(), 3);
 });
 
+test('sizing steered: a hard supply-current cap and a least-area objective, set from the page', async () => {
+  await openWithAids(REACHABLE);
+  await afterEvaluation(page, () => page.check('#aid-hard-idd'));
+  await afterEvaluation(page, () => page.selectOption('#aid-obj', 'area'));
+  const hash = await page.evaluate(() => location.hash);
+  assert.match(hash, /hard=idd/);
+  assert.match(hash, /obj=area/);
+  assert.equal(await runJob('#size-search', 'sizeState'), 'feasible');
+  // The cap holds at the found design (the search's own figure) …
+  const rows = await page.$$eval('#size-targets tbody tr', (trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  const idd = rows.find((r) => r[0] === 't.idd');
+  assert.ok(idd && idd[5] === 'yes', `t.idd row ${JSON.stringify(idd)}`);
+  // … and in the page's own evaluation of the applied design; the link
+  // keeps the steering.
+  const n0 = await refreshes();
+  await afterEvaluation(page, () => page.click('#size-apply'));
+  await aidsAfter(n0);
+  const r = await page.evaluate(() => window.stagewrightPage.result());
+  assert.ok(r.ok, 'applied design has no result');
+  assert.ok(r.op.id <= 200e-6 * (1 + 1e-9), `id ${r.op.id}`);
+  assert.ok(await page.isChecked('#aid-hard-idd'), 'the hard cap box is cleared by Apply');
+  assert.equal(await page.inputValue('#aid-obj'), 'area');
+});
+
 test('a reachable spec: search, apply, and the applied design meets it', async () => {
   await openWithAids(REACHABLE);
   assert.equal(await runJob('#size-search', 'sizeState'), 'feasible');
@@ -92,6 +116,16 @@ test('a reachable spec: search, apply, and the applied design meets it', async (
   // Transfer curve, swing and distortion.
   assert.equal(await page.locator('#plot-transfer canvas').count(), 1);
   assert.match(await page.textContent('#swing-limits'), /input range ends where/);
+  // The swing around the operating point: two headrooms in volts, each named by
+  // the device that ends it, and the symmetric swing twice the smaller.
+  const rows = await page.$$eval('#headroom-table tbody tr', (trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  assert.equal(rows.length, 3, `headroom rows ${JSON.stringify(rows)}`);
+  for (const row of rows) assert.match(row[1], /^[0-9.]+\s*[mµ]?V$/, `headroom cell ${row[1]}`);
+  assert.ok(rows[0][2].length > 0 && rows[0][2] !== '—', `upper limit unnamed: ${rows[0][2]}`);
+  const volts = (t) => parseFloat(t) * ({ m: 1e-3, 'µ': 1e-6 }[t.trim().slice(-2, -1)] ?? 1);
+  const smaller = Math.min(volts(rows[0][1]), volts(rows[1][1]));
+  // 4 significant digits shown: twice the smaller agrees to 0.1 %.
+  assert.ok(Math.abs(volts(rows[2][1]) - 2 * smaller) <= 1e-3 * 2 * smaller, `symmetric swing ${rows[2][1]} vs 2×${smaller}`);
   const dist = await page.textContent('#distortion-table');
   assert.match(dist, /HD2/);
   assert.match(dist, /dBc/);

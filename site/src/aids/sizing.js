@@ -10,7 +10,11 @@ const TARGETS = [
   ['t.idd', 'most supply current', 'A'], ['t.power', 'most power', 'W'], ['t.swing', 'least output swing', 'V'],
   ['t.noise', 'most input noise (rms)', 'V'], ['t.margin', 'least saturation margin', 'V'],
 ];
-const VARS = [['w', 'width', 'm'], ['l', 'length', 'm'], ['id', 'drain current', 'A'], ['rd', 'drain resistor', 'Ω'], ['rs', 'source resistor', 'Ω'], ['vin', 'input level', 'V']];
+const VARS = [['w', 'width', 'm'], ['l', 'length', 'm'], ['id', 'drain current', 'A'], ['rd', 'drain resistor', 'Ω'], ['rs', 'source resistor', 'Ω'], ['vin', 'input level', 'V'],
+  ['lw', 'load width', 'm'], ['ll', 'load length', 'm'], ['vout', 'output level (current-source load)', 'V']];
+// The at-most targets that may be made hard (key hard), and the objectives (key obj).
+const HARDABLE = ['idd', 'power', 'noise'];
+const OBJECTIVES = [['none', 'nothing more (the first design that meets them)'], ['power', 'least power'], ['area', 'least area W·L'], ['noise', 'least input noise']];
 
 /**
  * The sentence of an infeasible search: the core's message already begins
@@ -24,11 +28,24 @@ export function noTargetMet(message) {
 export function sizingPanel(ctx) {
   const p = panel('aid-size', 'Size to a spec');
   const targetBox = h('fieldset', { class: 'aid-set' }, h('legend', { text: 'Targets (empty or 0: none)' }));
+  const hardBoxes = {};
   const targetFields = TARGETS.map(([key, label, unit]) => {
     const f = numberField(`aid-${key.replace('.', '-')}`, label, unit, (t) => ctx.edit([[key, t === '' ? '0' : t]]), { title: `key ${key}` });
-    targetBox.appendChild(f.wrap);
+    const name = key.slice(2);
+    if (HARDABLE.includes(name)) {
+      const box = h('input', { type: 'checkbox', id: `aid-hard-${name}` });
+      box.addEventListener('change', () => {
+        const set = HARDABLE.filter((k) => hardBoxes[k].checked);
+        ctx.edit([['hard', set.length ? set.join('.') : 'none']]);
+      });
+      hardBoxes[name] = box;
+      targetBox.append(f.wrap, h('label', { class: 'aid-check aid-hard', for: `aid-hard-${name}`, title: 'key hard' }, box, ` a hard cap: never exceeded, even in a compromise`));
+    } else targetBox.appendChild(f.wrap);
     return { key, f };
   });
+  const objSelect = h('select', { id: 'aid-obj', title: 'key obj' }, OBJECTIVES.map(([v, label]) => h('option', { value: v, text: label })));
+  objSelect.addEventListener('change', () => ctx.edit([['obj', objSelect.value]]));
+  targetBox.appendChild(h('label', { class: 'aid-field', for: 'aid-obj' }, 'Once every target is met, find ', objSelect));
   const varyBox = h('fieldset', { class: 'aid-set' }, h('legend', { text: 'Inputs the search may move, and their ranges' }));
   const varRows = VARS.map(([key, label, unit]) => {
     const box = h('input', { type: 'checkbox', id: `aid-vary-${key}` });
@@ -118,6 +135,9 @@ export function sizingPanel(ctx) {
         const v = values(key);
         showField(f.input, v === '0' || v === undefined ? '' : v);
       }
+      const hard = (values('hard') || '').split('.');
+      for (const k of HARDABLE) hardBoxes[k].checked = hard.includes(k);
+      objSelect.value = values('obj') || 'none';
       const vary = (values('vary') || '').split('.');
       for (const r of varRows) {
         r.box.checked = vary.includes(r.key);

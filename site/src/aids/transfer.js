@@ -88,6 +88,11 @@ export function transferPanel(ctx) {
             ['output', num(tr.out_lo, 4, 'V'), num(tr.out_hi, 4, 'V'), num(tr.swing, 4, 'V')],
           ], { id: 'swing-table' }),
           h('p', { class: 'aid-note', id: 'swing-limits', text: `The input range ends where ${tr.limit_lo || '—'} (low end) and ${tr.limit_hi || '—'} (high end); the output swing is ${num(tr.swing, 4, 'V')} peak to peak.` }),
+          table(`Swing around the operating point (output at ${num(tr.out_op, 4, 'V')})`, ['', 'headroom', 'until'], [
+            ['output up', num(tr.headroom_hi, 4, 'V'), tr.limit_out_hi || '—'],
+            ['output down', num(tr.headroom_lo, 4, 'V'), tr.limit_out_lo || '—'],
+            ['symmetric swing (twice the smaller)', num(tr.swing_sym, 4, 'V'), ''],
+          ], { id: 'headroom-table', numeric: (i) => i === 1 }),
         );
       } catch (err) {
         if (!still()) return;
